@@ -1,0 +1,189 @@
+/**
+ * The shared mechanism behind every computation route: one case or a batch, input reading with
+ * field pointers, uncertainty propagation (none, linear or Monte Carlo), per-item physics errors,
+ * warnings, and a guarantee that no reply carries NaN or Infinity.
+ */
+import type { FastifyInstance } from 'fastify';
+import type { TSchema } from '@sinclair/typebox';
+import { propagateLinear, propagateMonteCarlo, type Measured, type Model, type Outputs, type Variable } from '../physics/uncertainty.js';
+import type { Config } from './config.js';
+import { CaseOrBatch, ResultOrBatch, ProblemSchema, type UncertaintyMethodInput } from './schemas.js';
+import { InputError, physicsProblem, problem, type FieldError, type Problem } from './problems.js';
+
+export interface Warning {
+  code: string;
+  message: string;
+}
+
+/** What a route makes of one case: its uncertain inputs, the model, and how to shape the reply. */
+export interface Prepared {
+  /** Inputs that may carry uncertainty, in the order the model takes them. */
+  vars: Variable[];
+  /** Flat numeric outputs as functions of the inputs (SI or dimensionless). */
+  compute: Model;
+  /** Builds the case reply from measured outputs; `nominal` holds the outputs at the nominal inputs. */
+  shape: (get: (key: string) => Measured, nominal: Outputs) => Record<string, unknown>;
+  /** Flags that depend on the nominal result. */
+  warnings?: (nominal: Outputs) => Warning[];
+  method?: UncertaintyMethodInput;
+  /** The metric or approximation used ("kerr", "schwarzschild", "weak-field"). */
+  model: string;
+  /** Short citations of the published methods used. */
+  references: string[];
+}
+
+export interface CaseContext {
+  /** RFC 6901 pointer of this case in the request body ("" or "/items/3"). */
+  pointer: string;
+  config: Config;
+}
+
+export interface CaseRoute<C> {
+  url: string;
+  summary: string;
+  description: string;
+  tags: string[];
+  caseSchema: TSchema;
+  resultSchema: TSchema;
+  prepare: (input: C, ctx: CaseContext) => Prepared;
+}
+
+const DEFAULT_SAMPLES = 10000;
+
+/** Samples a prepared case will cost (1 when no Monte Carlo). */
+function cost(p: Prepared): number {
+  const uncertain = p.vars.some((v) => v.sigma > 0);
+  if (!uncertain) return 1;
+  if (p.method?.kind === 'monte-carlo') return p.method.samples ?? DEFAULT_SAMPLES;
+  return 1 + 30 * p.vars.filter((v) => v.sigma > 0).length;
+}
+
+/** Finds the first non-finite number in a reply, as a pointer relative to it. */
+export function findNonFinite(value: unknown, path = ''): string | undefined {
+  if (typeof value === 'number') return Number.isFinite(value) ? undefined : path || '/';
+  if (value && typeof value === 'object') {
+    if (Array.isArray(value)) {
+      for (let i = 0; i < value.length; i++) {
+        const hit = findNonFinite(value[i], `${path}/${i}`);
+        if (hit) return hit;
+      }
+    } else {
+      for (const k in value) {
+        const hit = findNonFinite((value as Record<string, unknown>)[k], `${path}/${k}`);
+        if (hit) return hit;
+      }
+    }
+  }
+  return undefined;
+}
+
+/** Runs one prepared case; returns the reply object or a problem (422) for a physics failure. */
+export function runCase(p: Prepared, pointer: string): Record<string, unknown> | Problem {
+  try {
+    const x = p.vars.map((v) => v.value);
+    const uncertain = p.vars.some((v) => v.sigma > 0);
+    let nominal: Outputs;
+    let get: (k: string) => Measured;
+    let notes: Warning[] = [];
+    if (!uncertain) {
+      nominal = p.compute(x);
+      get = (k) => ({ value: nominal[k] });
+    } else {
+      const res =
+        p.method?.kind === 'monte-carlo'
+          ? propagateMonteCarlo(p.compute, p.vars, p.method.samples ?? DEFAULT_SAMPLES, p.method.seed ?? 1)
+          : propagateLinear(p.compute, p.vars);
+      nominal = {};
+      for (const k in res.values) nominal[k] = res.values[k].value;
+      get = (k) => res.values[k];
+      notes = res.notes;
+    }
+    const reply: Record<string, unknown> = { ...p.shape(get, nominal), model: p.model, references: p.references };
+    const warnings = [...(p.warnings?.(nominal) ?? []), ...notes];
+    if (warnings.length > 0) reply.warnings = warnings;
+    const bad = findNonFinite(reply);
+    if (bad) {
+      return problem(422, `the result ${bad} is not a finite number for these inputs`, [{ pointer: pointer || '/', message: `gives a non-finite ${bad}` }], 'non-finite-result');
+    }
+    return reply;
+  } catch (err) {
+    const prob = physicsProblem(err, pointer);
+    if (prob) return prob;
+    throw err;
+  }
+}
+
+export function isProblem(x: unknown): x is Problem {
+  return typeof x === 'object' && x !== null && 'status' in x && 'type' in x && 'title' in x;
+}
+
+/** Registers POST `url` taking one case or a batch. */
+export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route: CaseRoute<C>): void {
+  app.post(
+    route.url,
+    {
+      schema: {
+        summary: route.summary,
+        description: route.description,
+        tags: route.tags,
+        body: CaseOrBatch(route.caseSchema, config.BATCH_MAX),
+        response: {
+          200: ResultOrBatch(route.resultSchema),
+          '4xx': ProblemSchema,
+          '5xx': ProblemSchema,
+        },
+      },
+    },
+    async (request, reply) => {
+      const body = request.body as Record<string, unknown>;
+      const batch = Array.isArray((body as { items?: unknown }).items);
+      const inputs = (batch ? (body.items as C[]) : [body as C]);
+      const errors: FieldError[] = [];
+      const prepared: Array<{ p: Prepared; pointer: string } | undefined> = inputs.map((input, i) => {
+        const pointer = batch ? `/items/${i}` : '';
+        try {
+          return { p: route.prepare(input, { pointer, config }), pointer };
+        } catch (err) {
+          if (err instanceof InputError) {
+            if (errors.length < 100) errors.push(...err.errors);
+            return undefined;
+          }
+          const prob = physicsProblem(err, pointer);
+          if (prob && batch) return undefined; // reported in its slot below
+          throw err;
+        }
+      });
+      if (errors.length > 0) throw new InputError(errors);
+      for (const item of prepared) {
+        if (item?.p.method?.kind === 'monte-carlo' && (item.p.method.samples ?? DEFAULT_SAMPLES) > config.MC_SAMPLES_MAX) {
+          throw new InputError([{ pointer: `${item.pointer}/uncertainty_method/samples`, message: `must be <= ${config.MC_SAMPLES_MAX} (MC_SAMPLES_MAX)` }]);
+        }
+      }
+      const total = prepared.reduce((s, it) => s + (it ? cost(it.p) : 1), 0);
+      if (total > config.COMPUTE_BUDGET) {
+        throw new InputError([], 413, `this request needs about ${total} model evaluations; the limit is ${config.COMPUTE_BUDGET} (COMPUTE_BUDGET): split the batch or use fewer Monte Carlo samples`);
+      }
+      const results = prepared.map((it, i) => {
+        if (!it) {
+          // Prepare raised a physics error for this item: run it again to obtain the problem.
+          try {
+            route.prepare(inputs[i], { pointer: `/items/${i}`, config });
+          } catch (err) {
+            return physicsProblem(err, `/items/${i}`)!;
+          }
+          return problem(500);
+        }
+        return runCase(it.p, it.pointer);
+      });
+      if (!batch) {
+        const only = results[0];
+        if (isProblem(only)) {
+          reply.code(only.status).type('application/problem+json');
+          return { ...only, instance: request.url, request_id: request.id };
+        }
+        return only;
+      }
+      return { items: results.map((r) => (isProblem(r) ? { error: r } : r)), count: results.length };
+    },
+  );
+}

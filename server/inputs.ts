@@ -1,0 +1,104 @@
+/**
+ * Reads request inputs into SI values with 1-sigma uncertainties, or throws an InputError that
+ * names the field (RFC 6901 pointer), the problem and what is accepted.
+ */
+import { C, GM_EARTH, GM_EARTH_SIGMA, GM_SUN, R_EARTH, R_SUN, G } from '../physics/constants.js';
+import { DIMENSIONS, UnitError, toSI, type DimensionName } from '../physics/units.js';
+import { InputError, joinPointer } from './problems.js';
+import type { BodyInput, QuantityInput, ScalarInput } from './schemas.js';
+
+export interface Uncertain {
+  value: number;
+  sigma: number;
+}
+
+export interface LengthInput extends Uncertain {
+  /** Set when the length was given in body-relative units: value and sigma are then in that unit. */
+  relative?: 'rg' | 'rs';
+}
+
+function split(input: QuantityInput): { value: number; unit?: string; sigma: number } {
+  return typeof input === 'number' ? { value: input, sigma: 0 } : { value: input.value, unit: input.unit, sigma: input.uncertainty ?? 0 };
+}
+
+function fail(pointer: string, message: string): never {
+  throw new InputError([{ pointer: pointer || '/', message }]);
+}
+
+function accepted(dim: DimensionName): string {
+  return DIMENSIONS[dim].examples.filter(Boolean).join(', ');
+}
+
+/** A dimensional quantity in SI; `pointer` names the field for errors. */
+export function quantity(input: QuantityInput, pointer: string, dim: DimensionName): Uncertain & { unit?: string; gmPerUnit?: number } {
+  const q = split(input);
+  if (q.unit === undefined) return { value: q.value, sigma: q.sigma };
+  try {
+    const { value, factor, gm } = toSI(q.value, q.unit, dim);
+    return { value, sigma: q.sigma * factor, unit: q.unit, gmPerUnit: gm };
+  } catch (err) {
+    if (err instanceof UnitError) fail(pointer + '/unit', `${err.message}; accepted units for this field: ${accepted(dim)} (default ${DIMENSIONS[dim].si})`);
+    throw err;
+  }
+}
+
+/** A length that may also be given in body-relative units rg = GM/c^2 or rs = 2GM/c^2. */
+export function length(input: QuantityInput, pointer: string): LengthInput {
+  const q = split(input);
+  if (q.unit === 'rg' || q.unit === 'rs') return { value: q.value, sigma: q.sigma, relative: q.unit };
+  return quantity(input, pointer, 'length');
+}
+
+/** A length in units of rg for a body of mass parameter gm (m^3 s^-2). */
+export function lengthInRg(l: LengthInput, gm: number): Uncertain {
+  if (l.relative === 'rg') return { value: l.value, sigma: l.sigma };
+  if (l.relative === 'rs') return { value: 2 * l.value, sigma: 2 * l.sigma };
+  const rg = gm / (C * C);
+  return { value: l.value / rg, sigma: l.sigma / rg };
+}
+
+export function scalar(input: ScalarInput | undefined, fallback: number): Uncertain {
+  if (input === undefined) return { value: fallback, sigma: 0 };
+  return typeof input === 'number' ? { value: input, sigma: 0 } : { value: input.value, sigma: input.uncertainty ?? 0 };
+}
+
+export interface BodyInfo {
+  /** Mass parameter GM, m^3 s^-2. */
+  gm: Uncertain;
+  /** Dimensionless spin a* in [-1, 1]. */
+  spin: Uncertain;
+  preset?: 'sun' | 'earth';
+  /** Reference surface radius of a preset body, m. */
+  surfaceRadius?: number;
+  /** Pointers of the inputs, for messages. */
+  gmPointer: string;
+  spinPointer: string;
+}
+
+/** Reads the `body` object (../shared/design/api.md, "The central body"). */
+export function body(input: BodyInput, pointer: string): BodyInfo {
+  const given = (['mass', 'gm', 'preset'] as const).filter((k) => input[k] !== undefined);
+  if (given.length !== 1) {
+    fail(pointer, given.length === 0 ? 'needs one of mass, gm or preset' : `give exactly one of mass, gm or preset (got ${given.join(' and ')})`);
+  }
+  const spin = scalar(input.spin, 0);
+  const spinPointer = joinPointer(pointer, 'spin');
+  if (spin.sigma > 2) fail(spinPointer + '/uncertainty', 'must be <= 2 (spin is confined to [-1, 1])');
+  if (input.preset === 'sun') {
+    return { gm: { value: GM_SUN, sigma: 0 }, spin, preset: 'sun', surfaceRadius: R_SUN, gmPointer: joinPointer(pointer, 'preset'), spinPointer };
+  }
+  if (input.preset === 'earth') {
+    return { gm: { value: GM_EARTH, sigma: GM_EARTH_SIGMA }, spin, preset: 'earth', surfaceRadius: R_EARTH, gmPointer: joinPointer(pointer, 'preset'), spinPointer };
+  }
+  if (input.gm !== undefined) {
+    const p = joinPointer(pointer, 'gm');
+    return { gm: quantity(input.gm, p, 'gm'), spin, gmPointer: p, spinPointer };
+  }
+  const p = joinPointer(pointer, 'mass');
+  const raw = split(input.mass!);
+  const m = quantity(input.mass!, p, 'mass');
+  // A mass in solMass (or another nominal unit) converts through its nominal GM, never through G;
+  // a mass in kg goes through G (CODATA 2018), whose own uncertainty is not propagated.
+  const gmPerUnit = m.gmPerUnit ?? G;
+  return { gm: { value: raw.value * gmPerUnit, sigma: raw.sigma * gmPerUnit }, spin, gmPointer: p, spinPointer };
+}

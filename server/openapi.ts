@@ -1,0 +1,19 @@
+/** The fixed parts of the OpenAPI 3.1 document; paths come from the route schemas. */
+export function openapiDocument() {
+  return {
+    openapi: '3.1.0',
+    info: {
+      title: 'Lapse',
+      version: '1.0.0',
+      description:
+        'Relativistic observables near massive bodies (Schwarzschild, Kerr and weak-field metrics) as a JSON API. ' +
+        'Every computation takes one case or a batch {"items": [...]}; quantities are a bare number in the default SI unit or ' +
+        '{"value", "unit", "uncertainty"}; errors are RFC 9457 problem documents. Results are not certified for safety-of-life use.',
+      license: { name: 'Proprietary' },
+    },
+    tags: [
+      { name: 'reference', description: 'Constants and documents.' },
+      { name: 'radii', description: 'Characteristic radii of Kerr black holes.' },
+    ],
+  };
+}
