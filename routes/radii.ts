@@ -9,7 +9,7 @@ import { body as readBody } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
 import { Body, Provenance, QuantityOut, ScalarOut, UncertaintyMethod } from '../server/schemas.js';
 
-const RadiiCase = Type.Object(
+export const RadiiCase = Type.Object(
   {
     body: Body,
     uncertainty_method: Type.Optional(UncertaintyMethod),
