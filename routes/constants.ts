@@ -13,6 +13,7 @@ const ConstantsReply = Type.Object({
       unit: Type.String({ description: 'VOUnits unit string ("" for dimensionless).' }),
       source: Type.String({ description: 'Published source of the value.' }),
     }),
+    { description: 'Every constant the computations use.' },
   ),
 });
 

@@ -34,9 +34,18 @@ function sendProblem(reply: FastifyReply, p: Problem, request: FastifyRequest) {
     .send({ ...p, instance: request.url.split('?')[0], request_id: request.id });
 }
 
-export async function buildApp(config: Config = makeConfig()): Promise<FastifyInstance> {
+export interface BuildOptions {
+  /** Where log lines go (default stdout); tests pass a stream to read them. */
+  logStream?: NodeJS.WritableStream;
+}
+
+export async function buildApp(config: Config = makeConfig(), options: BuildOptions = {}): Promise<FastifyInstance> {
   const app = Fastify({
-    logger: { level: config.LOG_LEVEL, redact: ['req.headers.authorization', 'req.headers.cookie'] },
+    logger: {
+      level: config.LOG_LEVEL,
+      redact: ['req.headers.authorization', 'req.headers.cookie'],
+      ...(options.logStream ? { stream: options.logStream } : {}),
+    },
     bodyLimit: config.BODY_LIMIT,
     requestTimeout: config.REQUEST_TIMEOUT_MS,
     trustProxy: config.TRUST_PROXY,
@@ -61,6 +70,15 @@ export async function buildApp(config: Config = makeConfig()): Promise<FastifyIn
   app.addHook('onSend', async (request, reply, payload) => {
     reply.header('x-request-id', request.id);
     return payload;
+  });
+
+  // Batch size is checked before schema validation: an oversize batch is a 413, and is not
+  // validated item by item first.
+  app.addHook('preValidation', async (request) => {
+    const items = (request.body as { items?: unknown } | null | undefined)?.items;
+    if (Array.isArray(items) && items.length > config.BATCH_MAX) {
+      throw new InputError([{ pointer: '/items', message: `must have at most ${config.BATCH_MAX} items (BATCH_MAX)` }], 413, `the batch has ${items.length} items; the limit is ${config.BATCH_MAX} (BATCH_MAX)`);
+    }
   });
 
   // 405 for a known path with another method: remember every route's methods.

@@ -100,5 +100,9 @@ export function body(input: BodyInput, pointer: string): BodyInfo {
   // A mass in solMass (or another nominal unit) converts through its nominal GM, never through G;
   // a mass in kg goes through G (CODATA 2018), whose own uncertainty is not propagated.
   const gmPerUnit = m.gmPerUnit ?? G;
-  return { gm: { value: raw.value * gmPerUnit, sigma: raw.sigma * gmPerUnit }, spin, gmPointer: p, spinPointer };
+  const gm = { value: raw.value * gmPerUnit, sigma: raw.sigma * gmPerUnit };
+  if (!Number.isFinite(gm.value) || !Number.isFinite(gm.sigma) || !(gm.value > 0)) {
+    fail(p, `gives GM = ${gm.value} m3.s-2, outside the representable range (0, 1e300]`);
+  }
+  return { gm, spin, gmPointer: p, spinPointer };
 }

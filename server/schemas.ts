@@ -113,6 +113,7 @@ export const ProblemSchema = Type.Object(
           pointer: Type.String({ description: 'RFC 6901 JSON pointer to the offending field of the request body.' }),
           message: Type.String({ description: 'What is wrong with it and what is allowed.' }),
         }),
+        { description: 'The offending fields.' },
       ),
     ),
   },
