@@ -51,8 +51,6 @@ import {
 } from './redshift.js';
 import type { BrentOptions } from './roots.js';
 
-export { L_G };
-
 // ---------------------------------------------------------------------------
 // Results
 
@@ -221,14 +219,17 @@ export function movingClockSI(gm: number, r: number, v: number, c: number = C): 
     const allowed = `r > r_s = 2GM/c^2 = ${(2 * gm) / c / c} m`;
     throw new PhysicsDomainError(`a clock needs ${allowed}; got r = ${r} m`, allowed, 'r');
   }
-  const sr = (1 - b) * (1 + b);
+  // 1 - beta^2 = (c - |v|)(c + |v|)/c^2: c - |v| is exact for |v| near c (Sterbenz), so speeds
+  // close to c keep the precision of v itself (1 - v/c would lose it).
+  const speed = Math.abs(v);
+  const sr = ((c - speed) / c) * ((c + speed) / c);
   return clockRateFromLapse({ n: (1 - 2 * phi) * sr, d: 1, m: b * b + 2 * phi * sr });
 }
 
 /**
  * First-order (weak-field, slow-motion) clock offset against coordinate time:
  *   rate - 1 ~ -GM/(r c^2) - v^2/(2 c^2)
- * (IERS Conventions 2010 ch. 10; Ashby 2003 §4, from memory; error O(phi^2, beta^4, phi beta^2),
+ * (IERS Conventions 2010 ch. 10; Ashby 2003; error O(phi^2, beta^4, phi beta^2),
  * ~1e-19 for the Earth). `movingClockSI` is the exact Schwarzschild counterpart.
  */
 export function weakFieldRateMinusOne(gm: number, r: number, v: number, c: number = C): number {

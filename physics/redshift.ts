@@ -36,8 +36,6 @@ import { PhysicsDomainError, describeNumber, requireFinite, requirePositive } fr
 import { isco, photonOrbit } from './kerr.js';
 import { brent, type BrentOptions } from './roots.js';
 
-export { C };
-
 // ---------------------------------------------------------------------------
 // Numerical core
 
