@@ -3,7 +3,7 @@
  * names the field (RFC 6901 pointer), the problem and what is accepted.
  */
 import { C, GM_EARTH, GM_EARTH_SIGMA, GM_SUN, R_EARTH, R_SUN, G } from '../physics/constants.js';
-import { DIMENSIONS, UnitError, toSI, type DimensionName } from '../physics/units.js';
+import { DIMENSIONS, UnitError, spectralKind, spectralToHz, toSI, type DimensionName, type SpectralKind } from '../physics/units.js';
 import { InputError, joinPointer } from './problems.js';
 import type { BodyInput, QuantityInput, ScalarInput } from './schemas.js';
 
@@ -105,4 +105,35 @@ export function body(input: BodyInput, pointer: string): BodyInfo {
     fail(p, `gives GM = ${gm.value} m3.s-2, outside the representable range (0, 1e300]`);
   }
   return { gm, spin, gmPointer: p, spinPointer };
+}
+
+export interface SpectralInput extends Uncertain {
+  /** The value as given, in `unit` (default unit: m, a wavelength). */
+  unit: string;
+  kind: SpectralKind;
+  /** Frequency in Hz and its 1-sigma (first order). */
+  hz: Uncertain;
+}
+
+/**
+ * A spectral quantity: a wavelength, frequency or photon energy (api.md, "Quantities and units").
+ * A bare number is a wavelength in metres. value/sigma stay in the caller's unit.
+ */
+export function spectral(input: QuantityInput, pointer: string): SpectralInput {
+  const q = split(input);
+  const unit = q.unit ?? 'm';
+  try {
+    const kind = spectralKind(unit);
+    const hz = spectralToHz(q.value, unit);
+    // nu is proportional to the value (frequency, energy) or to its inverse (wavelength): either
+    // way the relative uncertainty carries over unchanged at first order.
+    const sigmaHz = (hz * q.sigma) / Math.abs(q.value);
+    if (!(q.value > 0)) fail(pointer + (typeof input === 'number' ? '' : '/value'), 'must be > 0 (a wavelength, frequency or photon energy)');
+    return { value: q.value, sigma: q.sigma, unit, kind, hz: { value: hz, sigma: sigmaHz } };
+  } catch (err) {
+    if (err instanceof UnitError) {
+      fail(pointer + '/unit', `${err.message}; accepted: a wavelength (m, nm, Angstrom, ...), a frequency (Hz, kHz, MHz, GHz) or a photon energy (eV, keV, J)`);
+    }
+    throw err;
+  }
 }

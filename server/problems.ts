@@ -1,3 +1,5 @@
+import { PhysicsDomainError } from '../physics/errors.js';
+
 /**
  * RFC 9457 problem documents and the errors that become them. Pointers are RFC 6901.
  */
@@ -50,17 +52,6 @@ export class InputError extends Error {
   }
 }
 
-/** A well-formed case with no physical solution (422); `allowed` states the domain. */
-export class DomainError extends Error {
-  constructor(
-    message: string,
-    readonly pointer = '',
-    readonly allowed?: string,
-  ) {
-    super(message);
-  }
-}
-
 /** Escapes one RFC 6901 reference token. */
 export function escapeToken(token: string | number): string {
   return String(token).replace(/~/g, '~0').replace(/\//g, '~1');
@@ -71,21 +62,18 @@ export function joinPointer(base: string, ...tokens: Array<string | number>): st
 }
 
 /**
- * Turns any error thrown by physics into a 422 problem, or returns undefined when it is not a
- * physics-domain error (then it is a bug and must surface as a 500).
+ * Turns an error thrown by physics into a 422 problem, or returns undefined when it is not a
+ * physics-domain error (then it is a bug and must surface as a 500). A PhysicsDomainError whose
+ * `parameter` is a JSON pointer ("/emitter/r") names that field of the case; otherwise the case.
  */
 export function physicsProblem(err: unknown, basePointer: string): Problem | undefined {
-  if (err instanceof DomainError) {
-    const pointer = err.pointer.startsWith('/') || err.pointer === '' ? basePointer + err.pointer : joinPointer(basePointer, err.pointer);
-    const detail = err.allowed ? `${err.message}; allowed: ${err.allowed}` : err.message;
-    return problem(422, detail, [{ pointer: pointer || '/', message: err.message }]);
+  if (err instanceof PhysicsDomainError) {
+    const pointer = err.parameter?.startsWith('/') ? basePointer + err.parameter : basePointer || '/';
+    return problem(422, `${err.message}; allowed: ${err.allowed}`, [{ pointer, message: err.message }]);
   }
-  // Physics modules signal a domain violation with RangeError, or a class carrying `allowed`.
-  if (err instanceof RangeError || (err instanceof Error && typeof (err as { allowed?: unknown }).allowed === 'string')) {
-    const e = err as Error & { allowed?: string; field?: string };
-    const pointer = e.field ? joinPointer(basePointer, ...e.field.split('.')) : basePointer || '/';
-    const detail = e.allowed ? `${e.message}; allowed: ${e.allowed}` : e.message;
-    return problem(422, detail, [{ pointer, message: e.message }]);
+  // physics/kerr.ts signals a domain violation with RangeError, its message naming the range.
+  if (err instanceof RangeError) {
+    return problem(422, err.message, [{ pointer: basePointer || '/', message: err.message }]);
   }
   return undefined;
 }
