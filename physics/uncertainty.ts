@@ -53,7 +53,34 @@ const SAFE = 2;
  */
 export function derivatives(model: Model, x: readonly number[], v: Variable, i: number): Record<string, { d: number; err: number }> {
   const xi = x[i];
-  const scale = Math.max(Math.abs(xi) * 1e-2, v.sigma > 0 ? v.sigma : 1e-8);
+  // First step: 1 % of |x| (at x = 0: sigma, or 0.01), shrunk below when that is too coarse.
+  let scale = xi !== 0 ? Math.abs(xi) * 1e-2 : Math.max(v.sigma, 1e-2);
+  // A start too coarse for the function's own scale shows as a large error estimate (or as an
+  // exactly flat tableau): start again from smaller steps and keep each output's best result.
+  let best: Record<string, { d: number; err: number }> | undefined;
+  for (let attempt = 0; attempt < 5; attempt++, scale /= 100) {
+    let res: Record<string, { d: number; err: number }>;
+    try {
+      res = riddersFrom(model, x, v, i, scale);
+    } catch (err) {
+      if (best) break;
+      if (attempt === 4) throw err;
+      continue;
+    }
+    if (!best) best = res;
+    else for (const k in res) if (res[k].err < best[k].err || (best[k].d === 0 && best[k].err === 0 && res[k].d !== 0)) best[k] = res[k];
+    let settled = true;
+    for (const k in best) {
+      const { d, err } = best[k];
+      if (!(err <= 1e-10 * Math.abs(d)) || (d === 0 && err === 0 && attempt === 0)) settled = false;
+    }
+    if (settled) break;
+  }
+  return best!;
+}
+
+function riddersFrom(model: Model, x: readonly number[], v: Variable, i: number, scale: number): Record<string, { d: number; err: number }> {
+  const xi = x[i];
   const below = xi - v.lo;
   const above = v.hi - xi;
   const room = Math.min(below, above);
