@@ -12,14 +12,24 @@
  *   BENCH_LOG_LEVEL           'warn' (default) or 'silent' (or any pino level).
  *   --exit-on-stdin-close     exit when stdin closes: bench.ts uses it so that the server dies with
  *                             its parent even if the parent is killed with SIGKILL.
+ *   BENCH_APP_DIR=DIR         load the app from a tsc build in DIR (DIR/server/app.js, ...) instead
+ *                             of the TypeScript sources. Under tsx every source file is transformed
+ *                             by esbuild with keepNames, which wraps each closure created at run time
+ *                             in a `__name(...)` call (an Object.defineProperty): a cost the
+ *                             production build (`node dist/server/start.js`) does not have.
+ *                             bench.ts --compiled sets it.
  * Once listening it prints one line to stdout:
- *   LAPSE-BENCH-SERVER READY url=http://127.0.0.1:PORT pid=PID
+ *   LAPSE-BENCH-SERVER READY url=http://127.0.0.1:PORT pid=PID app=DIR|sources
  */
+import { join, resolve } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { parseArgs } from 'node:util';
-import { buildApp } from '../server/app.js';
-import { makeConfig, type Config } from '../server/config.js';
-import { CaseOrBatch } from '../server/schemas.js';
-import { RadiiCase } from '../routes/radii.js';
+import type { Config } from '../server/config.js';
+
+type AppModule = typeof import('../server/app.js');
+type ConfigModule = typeof import('../server/config.js');
+type SchemasModule = typeof import('../server/schemas.js');
+type RadiiModule = typeof import('../routes/radii.js');
 
 // bench.ts matches these two strings (it does not import this file, which starts a server on load).
 const READY_PREFIX = 'LAPSE-BENCH-SERVER READY';
@@ -46,6 +56,18 @@ async function main(): Promise<void> {
   if (!/^\d+$/.test(portText) || port > 65535) fatal(`invalid port ${JSON.stringify(portText)}`);
   const levelText = process.env.BENCH_LOG_LEVEL ?? 'warn';
   if (!(LEVELS as readonly string[]).includes(levelText)) fatal(`invalid BENCH_LOG_LEVEL ${JSON.stringify(levelText)}; one of ${LEVELS.join(', ')}`);
+
+  // The same four modules, from the sources or from a compiled build.
+  const appDir = process.env.BENCH_APP_DIR;
+  const fromBuild = <M>(rel: string) => import(pathToFileURL(join(resolve(appDir!), rel)).href) as Promise<M>;
+  const [{ buildApp }, { makeConfig }, { CaseOrBatch }, { RadiiCase }] = appDir
+    ? await Promise.all([
+        fromBuild<AppModule>('server/app.js'),
+        fromBuild<ConfigModule>('server/config.js'),
+        fromBuild<SchemasModule>('server/schemas.js'),
+        fromBuild<RadiiModule>('routes/radii.js'),
+      ])
+    : await Promise.all([import('../server/app.js'), import('../server/config.js'), import('../server/schemas.js'), import('../routes/radii.js')]);
 
   const config: Config = makeConfig({
     HOST: '127.0.0.1',
@@ -87,7 +109,7 @@ async function main(): Promise<void> {
   await app.listen({ host: config.HOST, port: config.PORT });
   const address = app.server.address();
   if (address === null || typeof address === 'string') fatal(`unexpected listen address ${String(address)}`);
-  process.stdout.write(`${READY_PREFIX} url=http://127.0.0.1:${address.port} pid=${process.pid}\n`);
+  process.stdout.write(`${READY_PREFIX} url=http://127.0.0.1:${address.port} pid=${process.pid} app=${appDir ? resolve(appDir) : 'sources'}\n`);
 }
 
 main().catch((err: unknown) => fatal(err instanceof Error ? (err.stack ?? err.message) : String(err)));
