@@ -68,11 +68,11 @@ export function derivatives(model: Model, x: readonly number[], v: Variable, i: 
       continue;
     }
     if (!best) best = res;
-    else for (const k in res) if (res[k].err < best[k].err || (best[k].d === 0 && best[k].err === 0 && res[k].d !== 0)) best[k] = res[k];
+    else for (const k in res) if (res[k].err < best[k].err) best[k] = res[k];
     let settled = true;
     for (const k in best) {
       const { d, err } = best[k];
-      if (!(err <= 1e-10 * Math.abs(d)) || (d === 0 && err === 0 && attempt === 0)) settled = false;
+      if (!(err <= 1e-10 * Math.abs(d)) && !(d === 0 && err === 0)) settled = false;
     }
     if (settled) break;
   }
@@ -98,12 +98,16 @@ function riddersFrom(model: Model, x: readonly number[], v: Variable, i: number,
   // Steps exactly representable as differences of doubles, so that (x + h) - x == h.
   const exact = (step: number): number => xi + step - xi;
   const f0 = central ? undefined : model(x);
-  // The difference quotients for the whole step sequence; a step the model rejects restarts the
-  // sequence below it (smaller steps stay closer to the nominal point).
-  let rows: Outputs[] = [];
+  // Difference quotients row by row (Neville tableau per output), stopping once every output's
+  // extrapolation has stopped improving (NR's dfridr test). A step the model rejects restarts the
+  // tableau below it: smaller steps stay closer to the nominal point.
+  interface Tab { prev: number[]; ans: number; err: number; done: boolean }
+  let tabs: Record<string, Tab> | undefined;
+  let open = 0;
   for (let r = 0; r < NTAB; r++, h /= CON) {
+    let q: Outputs;
     try {
-      const q: Outputs = {};
+      q = {};
       if (central) {
         const hp = exact(h);
         const hm = -exact(-h);
@@ -115,34 +119,45 @@ function riddersFrom(model: Model, x: readonly number[], v: Variable, i: number,
         const fs = at(hs);
         for (const k in fs) q[k] = (fs[k] - f0![k]) / hs;
       }
-      rows.push(q);
     } catch {
-      rows = [];
+      tabs = undefined;
+      continue;
     }
-  }
-  if (rows.length === 0) throw new RangeError(`the model has no solution near the nominal ${v.name}`);
-  const result: Record<string, { d: number; err: number }> = {};
-  for (const k of Object.keys(rows[0])) {
-    let ans = rows[0][k];
-    let err = Infinity;
-    let prev: number[] = [rows[0][k]];
-    for (let r = 1; r < rows.length; r++) {
-      const cur: number[] = [rows[r][k]];
+    if (!tabs) {
+      tabs = {};
+      open = 0;
+      for (const k in q) {
+        tabs[k] = { prev: [q[k]], ans: q[k], err: Infinity, done: false };
+        open++;
+      }
+      continue;
+    }
+    for (const k in tabs) {
+      const t = tabs[k];
+      if (t.done) continue;
+      const prev = t.prev;
+      const cur: number[] = [q[k]];
       let fac = fac0;
-      for (let j = 1; j <= r; j++) {
+      for (let j = 1; j <= prev.length; j++) {
         cur[j] = (cur[j - 1] * fac - prev[j - 1]) / (fac - 1);
         fac *= fac0;
         const errt = Math.max(Math.abs(cur[j] - cur[j - 1]), Math.abs(cur[j] - prev[j - 1]));
-        if (errt <= err) {
-          err = errt;
-          ans = cur[j];
+        if (errt <= t.err) {
+          t.err = errt;
+          t.ans = cur[j];
         }
       }
-      if (Math.abs(cur[r] - prev[r - 1]) >= SAFE * err) break;
-      prev = cur;
+      if (Math.abs(cur[prev.length] - prev[prev.length - 1]) >= SAFE * t.err) {
+        t.done = true;
+        open--;
+      }
+      t.prev = cur;
     }
-    result[k] = { d: ans, err };
+    if (open === 0) break;
   }
+  if (!tabs) throw new RangeError(`the model has no solution near the nominal ${v.name}`);
+  const result: Record<string, { d: number; err: number }> = {};
+  for (const k in tabs) result[k] = { d: tabs[k].ans, err: tabs[k].err };
   return result;
 }
 

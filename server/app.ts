@@ -169,7 +169,7 @@ export async function buildApp(config: Config = makeConfig(), options: BuildOpti
     });
   }
 
-  await app.register(etag);
+  await app.register(etag, { algorithm: 'fnv1a' });
   await app.register(swagger, { openapi: openapiDocument() });
   await app.register(swaggerUi, { routePrefix: '/docs' });
   await app.register(helmet, {

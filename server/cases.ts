@@ -77,35 +77,53 @@ export function findNonFinite(value: unknown, path = ''): string | undefined {
   return undefined;
 }
 
-/** Runs one prepared case; returns the reply object or a problem (422) for a physics failure. */
-export function runCase(p: Prepared, pointer: string): Record<string, unknown> | Problem {
+/** A value JSON.stringify wrote as null: only a non-finite number can produce one in our replies. */
+const NULL_VALUE = /[:[,]null[,\]}]/;
+
+/**
+ * Runs one prepared case; returns the reply as JSON text, or a problem (422) for a physics failure.
+ * Serializing here (once per case) lets a batch reply be joined from its items' text, and lets the
+ * non-finite check scan text instead of walking every reply object.
+ */
+export function runCase(p: Prepared, pointer: string): string | Problem {
   try {
-    const x = p.vars.map((v) => v.value);
-    const uncertain = p.vars.some((v) => v.sigma > 0);
+    const vars = p.vars;
+    let uncertain = false;
+    const x = new Array<number>(vars.length);
+    for (let i = 0; i < vars.length; i++) {
+      x[i] = vars[i].value;
+      if (vars[i].sigma > 0) uncertain = true;
+    }
     let nominal: Outputs;
     let get: (k: string) => Measured;
-    let notes: Warning[] = [];
+    let notes: Warning[] | undefined;
     if (!uncertain) {
-      nominal = p.compute(x);
-      get = (k) => ({ value: nominal[k] });
+      const out = p.compute(x);
+      nominal = out;
+      get = (k) => ({ value: out[k] });
     } else {
       const res =
         p.method?.kind === 'monte-carlo'
-          ? propagateMonteCarlo(p.compute, p.vars, p.method.samples ?? DEFAULT_SAMPLES, p.method.seed ?? 1)
-          : propagateLinear(p.compute, p.vars);
+          ? propagateMonteCarlo(p.compute, vars, p.method.samples ?? DEFAULT_SAMPLES, p.method.seed ?? 1)
+          : propagateLinear(p.compute, vars);
       nominal = {};
       for (const k in res.values) nominal[k] = res.values[k].value;
       get = (k) => res.values[k];
       notes = res.notes;
     }
-    const reply: Record<string, unknown> = { ...p.shape(get, nominal), model: p.model, references: p.references };
-    const warnings = [...(p.warnings?.(nominal) ?? []), ...notes];
-    if (warnings.length > 0) reply.warnings = warnings;
-    const bad = findNonFinite(reply);
-    if (bad) {
-      return problem(422, `the result ${bad} is not a finite number for these inputs`, [{ pointer: pointer || '/', message: `gives a non-finite ${bad}` }], 'non-finite-result');
+    const reply = p.shape(get, nominal);
+    reply.model = p.model;
+    reply.references = p.references;
+    const flags = p.warnings?.(nominal);
+    if ((flags && flags.length > 0) || (notes && notes.length > 0)) reply.warnings = [...(flags ?? []), ...(notes ?? [])];
+    const json = JSON.stringify(reply);
+    if (NULL_VALUE.test(json)) {
+      const bad = findNonFinite(reply);
+      if (bad) {
+        return problem(422, `the result ${bad} is not a finite number for these inputs`, [{ pointer: pointer || '/', message: `gives a non-finite ${bad}` }], 'non-finite-result');
+      }
     }
-    return reply;
+    return json;
   } catch (err) {
     const prob = physicsProblem(err, pointer);
     if (prob) return prob;
@@ -139,51 +157,45 @@ export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route
       const batch = Array.isArray((body as { items?: unknown }).items);
       const inputs = (batch ? (body.items as C[]) : [body as C]);
       const errors: FieldError[] = [];
-      const prepared: Array<{ p: Prepared; pointer: string } | undefined> = inputs.map((input, i) => {
+      // Every case is read first, so that all input errors of a batch come back in one 400.
+      const slots: Array<{ p: Prepared; pointer: string } | Problem> = inputs.map((input, i) => {
         const pointer = batch ? `/items/${i}` : '';
         try {
           return { p: route.prepare(input, { pointer, config }), pointer };
         } catch (err) {
           if (err instanceof InputError) {
             if (errors.length < 100) errors.push(...err.errors);
-            return undefined;
+            return problem(400);
           }
           const prob = physicsProblem(err, pointer);
-          if (prob && batch) return undefined; // reported in its slot below
+          if (prob) return prob;
           throw err;
         }
       });
       if (errors.length > 0) throw new InputError(errors);
-      for (const item of prepared) {
-        if (item?.p.method?.kind === 'monte-carlo' && (item.p.method.samples ?? DEFAULT_SAMPLES) > config.MC_SAMPLES_MAX) {
-          throw new InputError([{ pointer: `${item.pointer}/uncertainty_method/samples`, message: `must be <= ${config.MC_SAMPLES_MAX} (MC_SAMPLES_MAX)` }]);
+      let total = 0;
+      for (const slot of slots) {
+        if (isProblem(slot)) continue;
+        const m = slot.p.method;
+        if (m?.kind === 'monte-carlo' && (m.samples ?? DEFAULT_SAMPLES) > config.MC_SAMPLES_MAX) {
+          throw new InputError([{ pointer: `${slot.pointer}/uncertainty_method/samples`, message: `must be <= ${config.MC_SAMPLES_MAX} (MC_SAMPLES_MAX)` }]);
         }
+        total += cost(slot.p);
       }
-      const total = prepared.reduce((s, it) => s + (it ? cost(it.p) : 1), 0);
       if (total > config.COMPUTE_BUDGET) {
         throw new InputError([], 413, `this request needs about ${total} model evaluations; the limit is ${config.COMPUTE_BUDGET} (COMPUTE_BUDGET): split the batch or use fewer Monte Carlo samples`);
       }
-      const results = prepared.map((it, i) => {
-        if (!it) {
-          // Prepare raised a physics error for this item: run it again to obtain the problem.
-          try {
-            route.prepare(inputs[i], { pointer: `/items/${i}`, config });
-          } catch (err) {
-            return physicsProblem(err, `/items/${i}`)!;
-          }
-          return problem(500);
-        }
-        return runCase(it.p, it.pointer);
-      });
+      const results = slots.map((slot) => (isProblem(slot) ? slot : runCase(slot.p, slot.pointer)));
       if (!batch) {
         const only = results[0];
-        if (isProblem(only)) {
+        if (typeof only !== 'string') {
           reply.code(only.status).type('application/problem+json');
           return { ...only, instance: request.url, request_id: request.id };
         }
-        return only;
+        return reply.type('application/json; charset=utf-8').send(only);
       }
-      return { items: results.map((r) => (isProblem(r) ? { error: r } : r)), count: results.length };
+      const parts = results.map((r) => (typeof r === 'string' ? r : JSON.stringify({ error: r })));
+      return reply.type('application/json; charset=utf-8').send(`{"items":[${parts.join(',')}],"count":${parts.length}}`);
     },
   );
 }
