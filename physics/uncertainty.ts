@@ -68,7 +68,7 @@ export function derivatives(model: Model, x: readonly number[], v: Variable, i: 
       continue;
     }
     if (!best) best = res;
-    else for (const k in res) if (res[k].err < best[k].err) best[k] = res[k];
+    else for (const k in res) if (quality(res[k]) < quality(best[k])) best[k] = res[k];
     let settled = true;
     for (const k in best) {
       const { d, err } = best[k];
@@ -77,6 +77,12 @@ export function derivatives(model: Model, x: readonly number[], v: Variable, i: 
     if (settled) break;
   }
   return best!;
+}
+
+/** Relative error of a derivative estimate; an exactly flat tableau (0 +- 0) ranks last, since a
+ * step too small for the function's precision gives one (e.g. outputs that sit near 1). */
+function quality(r: { d: number; err: number }): number {
+  return r.d === 0 ? (r.err === 0 ? Number.MAX_VALUE : Infinity) : r.err / Math.abs(r.d);
 }
 
 function riddersFrom(model: Model, x: readonly number[], v: Variable, i: number, scale: number): Record<string, { d: number; err: number }> {

@@ -1,5 +1,6 @@
 /** GET /v1/constants: the constants the service computes with, with uncertainties and sources. */
 import type { FastifyInstance } from 'fastify';
+import etag from '@fastify/etag';
 import { Type } from '@sinclair/typebox';
 import { CONSTANTS } from '../physics/constants.js';
 
@@ -18,6 +19,9 @@ const ConstantsReply = Type.Object({
 });
 
 export async function constantsRoutes(app: FastifyInstance): Promise<void> {
+  // ETags (with 304 on If-None-Match) for the read-only documents of this plugin only: POST
+  // replies are not cached by proxies, and hashing every computed reply would cost each request.
+  await app.register(etag);
   const body = { constants: CONSTANTS };
   app.get(
     '/v1/constants',

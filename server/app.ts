@@ -6,14 +6,13 @@ import { randomUUID } from 'node:crypto';
 import Fastify, { type FastifyError, type FastifyInstance, type FastifyReply, type FastifyRequest } from 'fastify';
 import type { TypeBoxTypeProvider } from '@fastify/type-provider-typebox';
 import cors from '@fastify/cors';
-import etag from '@fastify/etag';
-import helmet from '@fastify/helmet';
 import rateLimit from '@fastify/rate-limit';
 import swagger from '@fastify/swagger';
 import swaggerUi from '@fastify/swagger-ui';
 import underPressure from '@fastify/under-pressure';
 import { makeConfig, type Config } from './config.js';
 import { metricsPlugin } from './metrics.js';
+import { registerSecurityHeaders } from './security.js';
 import { InputError, problem, type Problem } from './problems.js';
 import { explainAjvErrors } from './validation.js';
 import { openapiDocument } from './openapi.js';
@@ -169,10 +168,9 @@ export async function buildApp(config: Config = makeConfig(), options: BuildOpti
     });
   }
 
-  await app.register(etag, { algorithm: 'fnv1a' });
   await app.register(swagger, { openapi: openapiDocument() });
   await app.register(swaggerUi, { routePrefix: '/docs' });
-  await app.register(helmet, {
+  registerSecurityHeaders(app, {
     contentSecurityPolicy: {
       directives: {
         defaultSrc: ["'self'"],

@@ -23,8 +23,8 @@ export interface Prepared {
   compute: Model;
   /** Builds the case reply from measured outputs; `nominal` holds the outputs at the nominal inputs. */
   shape: (get: (key: string) => Measured, nominal: Outputs) => Record<string, unknown>;
-  /** Flags that depend on the nominal result. */
-  warnings?: (nominal: Outputs) => Warning[];
+  /** Flags that depend on the result: nominal outputs, and measured ones (with uncertainties). */
+  warnings?: (nominal: Outputs, get: (key: string) => Measured) => Warning[];
   method?: UncertaintyMethodInput;
   /** The metric or approximation used ("kerr", "schwarzschild", "weak-field"). */
   model: string;
@@ -55,7 +55,7 @@ function cost(p: Prepared): number {
   const uncertain = p.vars.some((v) => v.sigma > 0);
   if (!uncertain) return 1;
   if (p.method?.kind === 'monte-carlo') return p.method.samples ?? DEFAULT_SAMPLES;
-  return 1 + 30 * p.vars.filter((v) => v.sigma > 0).length;
+  return 1 + 60 * p.vars.filter((v) => v.sigma > 0).length; // Ridders: typically 8-40 evaluations
 }
 
 /** Finds the first non-finite number in a reply, as a pointer relative to it. */
@@ -114,7 +114,7 @@ export function runCase(p: Prepared, pointer: string): string | Problem {
     const reply = p.shape(get, nominal);
     reply.model = p.model;
     reply.references = p.references;
-    const flags = p.warnings?.(nominal);
+    const flags = p.warnings?.(nominal, get);
     if ((flags && flags.length > 0) || (notes && notes.length > 0)) reply.warnings = [...(flags ?? []), ...(notes ?? [])];
     const json = JSON.stringify(reply);
     if (NULL_VALUE.test(json)) {

@@ -46,7 +46,14 @@ export function quantity(input: QuantityInput, pointer: string, dim: DimensionNa
 export function length(input: QuantityInput, pointer: string): LengthInput {
   const q = split(input);
   if (q.unit === 'rg' || q.unit === 'rs') return { value: q.value, sigma: q.sigma, relative: q.unit };
-  return quantity(input, pointer, 'length');
+  try {
+    return quantity(input, pointer, 'length');
+  } catch (err) {
+    if (err instanceof InputError) {
+      throw new InputError(err.errors.map((e) => ({ ...e, message: e.message.replace('(default m)', 'and the body-relative rg (GM/c^2) and rs (2GM/c^2) (default m)') })));
+    }
+    throw err;
+  }
 }
 
 /** A length in units of rg for a body of mass parameter gm (m^3 s^-2). */

@@ -215,5 +215,9 @@ describe('GET /v1/constants', () => {
     expect(by.g_0.value).toBe(9.80665);
     expect(by.a_J.value).toBe(31557600);
     for (const c of Object.values(by)) expect(c.source.length).toBeGreaterThan(5);
+    // A read-only document: cacheable, with an ETag and 304 on a matching If-None-Match.
+    expect(res.headers.etag).toBeTruthy();
+    const again = await request(app.server).get('/v1/constants').set('if-none-match', res.headers.etag);
+    expect(again.status).toBe(304);
   });
 });
