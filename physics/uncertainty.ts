@@ -54,7 +54,8 @@ const SAFE = 2;
 export function derivatives(model: Model, x: readonly number[], v: Variable, i: number): Record<string, { d: number; err: number }> {
   const xi = x[i];
   // First step: 1 % of |x| (at x = 0: sigma, or 0.01), shrunk below when that is too coarse.
-  let scale = xi !== 0 ? Math.abs(xi) * 1e-2 : Math.max(v.sigma, 1e-2);
+  let scale = Math.abs(xi) * 1e-2;
+  if (!(scale > 1e-290)) scale = Math.max(v.sigma, 1e-2); // x = 0 or subnormal: no relative scale
   // A start too coarse for the function's own scale shows as a large error estimate (or as an
   // exactly flat tableau): start again from smaller steps and keep each output's best result.
   let best: Record<string, { d: number; err: number }> | undefined;

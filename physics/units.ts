@@ -69,11 +69,12 @@ const PREFIX: Record<string, number> = {
 export class UnitError extends Error {}
 
 function symbol(sym: string): UnitInfo {
-  const exact = BASE[sym];
+  const exact = Object.hasOwn(BASE, sym) ? BASE[sym] : undefined;
   if (exact) return exact;
   for (const p of ['da', ...Object.keys(PREFIX).filter((k) => k !== 'da')]) {
     if (sym.startsWith(p)) {
-      const base = BASE[sym.slice(p.length)];
+      const rest = sym.slice(p.length);
+      const base = Object.hasOwn(BASE, rest) ? BASE[rest] : undefined;
       if (base?.prefixable) {
         return { factor: PREFIX[p] * base.factor, dim: base.dim, gm: base.gm === undefined ? undefined : PREFIX[p] * base.gm };
       }

@@ -48,6 +48,8 @@ export async function buildApp(config: Config = makeConfig(), options: BuildOpti
     bodyLimit: config.BODY_LIMIT,
     requestTimeout: config.REQUEST_TIMEOUT_MS,
     trustProxy: config.TRUST_PROXY,
+    // Requests already received when shutdown starts are served, not refused (start.ts drains).
+    return503OnClosing: false,
     requestIdHeader: false,
     genReqId: (req) => {
       const given = req.headers['x-request-id'];
@@ -68,6 +70,8 @@ export async function buildApp(config: Config = makeConfig(), options: BuildOpti
 
   app.addHook('onSend', async (request, reply, payload) => {
     reply.header('x-request-id', request.id);
+    // While draining, close each connection after its reply so that close() can finish.
+    if (app.lapse.draining) reply.header('connection', 'close');
     return payload;
   });
 

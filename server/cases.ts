@@ -33,7 +33,10 @@ export interface Prepared {
 }
 
 export interface CaseContext {
-  /** RFC 6901 pointer of this case in the request body ("" or "/items/3"). */
+  /**
+   * RFC 6901 pointer of this case in the request body ("" or "/items/3"), for messages only:
+   * pointers in errors thrown by `prepare`/`compute` are relative to the case and get prefixed.
+   */
   pointer: string;
   config: Config;
 }
@@ -120,7 +123,7 @@ export function runCase(p: Prepared, pointer: string): string | Problem {
     if (NULL_VALUE.test(json)) {
       const bad = findNonFinite(reply);
       if (bad) {
-        return problem(422, `the result ${bad} is not a finite number for these inputs`, [{ pointer: pointer || '/', message: `gives a non-finite ${bad}` }], 'non-finite-result');
+        return problem(422, `the result ${bad} is not a finite number for these inputs`, [{ pointer, message: `gives a non-finite ${bad}` }], 'non-finite-result');
       }
     }
     return json;
@@ -164,7 +167,8 @@ export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route
           return { p: route.prepare(input, { pointer, config }), pointer };
         } catch (err) {
           if (err instanceof InputError) {
-            if (errors.length < 100) errors.push(...err.errors);
+            // Routes point relative to their case; a batch item's pointers get its /items/N.
+            if (errors.length < 100) errors.push(...err.errors.map((e) => ({ ...e, pointer: pointer + e.pointer })));
             return problem(400);
           }
           const prob = physicsProblem(err, pointer);

@@ -22,7 +22,7 @@ function split(input: QuantityInput): { value: number; unit?: string; sigma: num
 }
 
 function fail(pointer: string, message: string): never {
-  throw new InputError([{ pointer: pointer || '/', message }]);
+  throw new InputError([{ pointer, message }]);
 }
 
 function accepted(dim: DimensionName): string {
@@ -99,7 +99,11 @@ export function body(input: BodyInput, pointer: string): BodyInfo {
   }
   if (input.gm !== undefined) {
     const p = joinPointer(pointer, 'gm');
-    return { gm: quantity(input.gm, p, 'gm'), spin, gmPointer: p, spinPointer };
+    const gm = quantity(input.gm, p, 'gm');
+    if (!Number.isFinite(gm.value) || !Number.isFinite(gm.sigma) || !(gm.value > 0)) {
+      fail(p, `gives GM = ${gm.value} m3.s-2, outside the representable range (0, 1e300]`);
+    }
+    return { gm, spin, gmPointer: p, spinPointer };
   }
   const p = joinPointer(pointer, 'mass');
   const raw = split(input.mass!);

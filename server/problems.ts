@@ -68,12 +68,12 @@ export function joinPointer(base: string, ...tokens: Array<string | number>): st
  */
 export function physicsProblem(err: unknown, basePointer: string): Problem | undefined {
   if (err instanceof PhysicsDomainError) {
-    const pointer = err.parameter?.startsWith('/') ? basePointer + err.parameter : basePointer || '/';
+    const pointer = err.parameter?.startsWith('/') ? basePointer + err.parameter : basePointer;
     return problem(422, `${err.message}; allowed: ${err.allowed}`, [{ pointer, message: err.message }]);
   }
   // physics/kerr.ts signals a domain violation with RangeError, its message naming the range.
   if (err instanceof RangeError) {
-    return problem(422, err.message, [{ pointer: basePointer || '/', message: err.message }]);
+    return problem(422, err.message, [{ pointer: basePointer, message: err.message }]);
   }
   return undefined;
 }

@@ -29,7 +29,10 @@ async function main(): Promise<void> {
       process.exit(1);
     }, config.SHUTDOWN_GRACE_MS);
     timer.unref();
-    app.close().then(
+    // A short pause before closing the listener lets requests already queued on accepted
+    // connections be read and answered instead of reset.
+    const closing = new Promise((resolve) => setTimeout(resolve, Math.min(250, config.SHUTDOWN_GRACE_MS / 4)));
+    closing.then(() => app.close()).then(
       () => {
         app.log.info('shut down cleanly');
         process.exit(0);

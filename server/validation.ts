@@ -3,7 +3,7 @@
  * for a union ("a number, or {value, unit, uncertainty}", "one case, or {items}") only the
  * branch that matches the shape of what was sent is explained.
  */
-import type { FieldError } from './problems.js';
+import { escapeToken, type FieldError } from './problems.js';
 
 interface AjvError {
   instancePath: string;
@@ -79,10 +79,10 @@ function message(e: AjvError, base: string): FieldError {
   const at = base + e.instancePath;
   switch (e.keyword) {
     case 'required':
-      return { pointer: `${at}/${String(e.params.missingProperty)}`, message: 'is required' };
+      return { pointer: `${at}/${escapeToken(String(e.params.missingProperty))}`, message: 'is required' };
     case 'additionalProperties': {
       const allowed = Object.keys((ps?.properties as object) ?? {});
-      return { pointer: `${at}/${String(e.params.additionalProperty)}`, message: `is not an accepted field here (accepted: ${allowed.join(', ') || 'none'})` };
+      return { pointer: `${at}/${escapeToken(String(e.params.additionalProperty))}`, message: `is not an accepted field here (accepted: ${allowed.join(', ') || 'none'})` };
     }
     case 'type':
       return { pointer: at, message: `must be ${describeType(ps ?? { type: e.params.type })}` };
