@@ -3,8 +3,12 @@ import type { FastifyInstance } from 'fastify';
 import type { Config } from '../server/config.js';
 import { constantsRoutes } from './constants.js';
 import { radiiRoutes } from './radii.js';
+import { redshiftRoutes } from './redshift.js';
+import { clockRateRoutes } from './clock-rate.js';
 
 export async function routes(app: FastifyInstance, opts: { config: Config }): Promise<void> {
   await app.register(constantsRoutes);
   await app.register(radiiRoutes, opts);
+  await app.register(redshiftRoutes, opts);
+  await app.register(clockRateRoutes, opts);
 }

@@ -14,6 +14,8 @@ export function openapiDocument() {
     tags: [
       { name: 'reference', description: 'Constants and documents.' },
       { name: 'radii', description: 'Characteristic radii of Kerr black holes.' },
+      { name: 'redshift', description: 'Gravitational redshift of static and orbiting emitters, and its inversion to a radius or a mass.' },
+      { name: 'clock-rate', description: 'Clock rates and fractional clock offsets in gravitational fields, and where a clock runs at a given rate.' },
     ],
   };
 }
