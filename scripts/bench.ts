@@ -224,6 +224,35 @@ function expectBatch(n: number, itemKey?: string) {
 }
 
 const BATCH_N = 1000;
+const INVERSION_N = 10000;
+
+/**
+ * Redshift inversions of an invented survey: static emitters (closed form), circular orbits of
+ * either direction (Brent's method) and mass solutions, one in ten with an uncertain shift.
+ */
+function variedInversionCases(n: number, seed = 20261202): Json[] {
+  const rnd = prng(seed);
+  const round = (x: number) => Number(x.toPrecision(6));
+  const cases: Json[] = [];
+  for (let i = 0; i < n; i++) {
+    const z = round(Math.pow(10, -3 + 3.5 * rnd()));
+    const shift: Json = i % 10 === 3 ? { value: z, uncertainty: round(z * 0.02) } : z;
+    switch (i % 4) {
+      case 0:
+        cases.push({ body: { mass: { value: round(5 + 20 * rnd()), unit: 'solMass' } }, emitter: { motion: 'static' }, z: shift, solve_for: 'r' });
+        break;
+      case 1:
+        cases.push({ body: { mass: { value: round(5 + 20 * rnd()), unit: 'solMass' }, spin: round(-0.99 + 1.98 * rnd()) }, emitter: { motion: 'circular', direction: 'prograde' }, z: shift, solve_for: 'r' });
+        break;
+      case 2:
+        cases.push({ body: { gm: round(1e20 * (1 + 9 * rnd())), spin: round(0.9 * rnd()) }, emitter: { motion: 'circular', direction: 'retrograde' }, z: shift, solve_for: 'r' });
+        break;
+      default:
+        cases.push({ emitter: { motion: 'static' }, velocity: { value: round(10 + 200 * rnd()), unit: 'km/s' }, r: { value: round(0.005 + 0.02 * rnd()), unit: 'solRad' }, solve_for: 'mass' });
+    }
+  }
+  return cases;
+}
 const bareOk = (status: number, reply: Json) =>
   status === 200 && (reply as { ok?: unknown } | null)?.ok === true ? undefined : `status ${status}: ${JSON.stringify(reply).slice(0, 300)}`;
 
@@ -269,10 +298,17 @@ const SCENARIOS: Scenario[] = [
     byDefault: true,
     check: expectBatch(BATCH_N, 'isco'),
   },
-  // Example of a later addition (opt-in with --scenarios ...,inversion-batch):
-  // { name: 'inversion-batch', description: 'POST /v1/inversion, 10 000 cases', path: '/v1/inversion',
-  //   body: () => ({ items: manyInversionCases(10000) }), kind: 'batch', cases: 10000, connections: 1,
-  //   durationSec: 5, byDefault: false, check: expectBatch(10000, 'some_key') },
+  {
+    name: 'inversion-batch',
+    description: `POST /v1/redshift/inversion, batch of ${INVERSION_N} varied cases (closed forms, Brent, mass solutions)`,
+    path: '/v1/redshift/inversion',
+    body: () => ({ items: variedInversionCases(INVERSION_N) }),
+    kind: 'batch',
+    cases: INVERSION_N,
+    connections: 1,
+    byDefault: true,
+    check: expectBatch(INVERSION_N, 'model'),
+  },
 ];
 
 const COMPARISONS: Comparison[] = [
