@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { Decimal } from 'decimal.js';
+import { reference } from '../support/reference.js';
 import fc from 'fast-check';
 import { PhysicsDomainError } from '../../physics/errors.js';
 import {
@@ -33,25 +33,8 @@ import {
 // decimal.js references at 60 significant digits (textbook forms, cancellations included:
 // the offsets below are >= 1e-16, so >= 40 digits survive).
 
-const D = Decimal.clone({ precision: 60 });
+const { D, exact, relErr } = reference(60);
 type Dec = InstanceType<typeof D>;
-
-function exact(x: number): Dec {
-  if (!Number.isFinite(x)) throw new Error('exact(): non-finite');
-  if (x === 0) return new D(0);
-  let m = x;
-  let e = 0;
-  while (!Number.isInteger(m)) {
-    m *= 2;
-    e += 1;
-  }
-  return new D(m).div(new D(2).pow(e));
-}
-
-function relErr(x: number, ref: Dec): number {
-  if (ref.isZero()) return x === 0 ? 0 : Infinity;
-  return exact(x).minus(ref).div(ref).abs().toNumber();
-}
 
 const ONE = new D(1);
 const TWO = new D(2);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { Decimal } from 'decimal.js';
+import { reference } from '../support/reference.js';
 import fc from 'fast-check';
 import {
   assertSpin,
@@ -26,20 +26,8 @@ import {
 // evaluated with 50 significant digits, so at least ~34 digits survive any cancellation
 // for the spins used here (|a| >= 1e-8 or a = 0; 1 - |a| >= 2^-52 or |a| = 1).
 
-const D = Decimal.clone({ precision: 50 });
+const { D, exact } = reference(50);
 type Dec = InstanceType<typeof D>;
-
-/** The exact value of a binary double as a Decimal (not its shortest decimal string). */
-function exact(x: number): Dec {
-  if (x === 0) return new D(0);
-  let m = x;
-  let e = 0;
-  while (!Number.isInteger(m)) {
-    m *= 2;
-    e += 1;
-  }
-  return new D(m).div(new D(2).pow(e));
-}
 
 const ONE = new D(1);
 const TWO = new D(2);

@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { reference } from '../support/reference.js';
 import { Decimal } from 'decimal.js';
 import fc from 'fast-check';
 import { PhysicsDomainError } from '../../physics/errors.js';
@@ -28,26 +29,8 @@ import {
 // textbook forms *with* their cancellations (1 - 2/r, (1+z) - 1, r - r_E, ...): 60 digits leave
 // >= 40 correct digits for every input below, far more than the 1e-12 the checks need.
 
-const D = Decimal.clone({ precision: 60 });
+const { D, exact, relErr } = reference(60);
 type Dec = InstanceType<typeof D>;
-
-/** Exact decimal value of a double (integer mantissa times a power of two). */
-function exact(x: number): Dec {
-  if (!Number.isFinite(x)) throw new Error('exact(): non-finite');
-  if (x === 0) return new D(0);
-  let m = x;
-  let e = 0;
-  while (!Number.isInteger(m)) {
-    m *= 2;
-    e += 1;
-  }
-  return new D(m).div(new D(2).pow(e));
-}
-
-function relErr(x: number, ref: Dec): number {
-  if (ref.isZero()) return x === 0 ? 0 : Infinity;
-  return exact(x).minus(ref).div(ref).abs().toNumber();
-}
 
 const ONE = new D(1);
 const TWO = new D(2);

@@ -17,7 +17,7 @@
  *     N(0,1) moments: mean 0, variance 1, skewness 0, kurtosis 3.
  */
 import { describe, expect, it } from 'vitest';
-import { Decimal } from 'decimal.js';
+import { reference } from '../support/reference.js';
 import fc from 'fast-check';
 import {
   derivatives,
@@ -33,21 +33,8 @@ import {
 // ---------------------------------------------------------------------------
 // 40-digit reference arithmetic
 
-const R = Decimal.clone({ precision: 40 });
+const { D: R, exact: dec } = reference(40);
 type Ref = InstanceType<typeof R>;
-
-/** The exact binary value of a double as a Decimal. */
-function dec(x: number): Ref {
-  if (!Number.isFinite(x)) throw new Error(`not finite: ${x}`);
-  if (x === 0) return new R(0);
-  let mant = x;
-  let pow2 = 0;
-  while (!Number.isInteger(mant)) {
-    mant *= 2;
-    pow2 += 1;
-  }
-  return new R(BigInt(mant).toString()).div(new R(2).pow(pow2));
-}
 
 function relErr(x: number, ref: Ref): number {
   if (ref.isZero()) return x === 0 ? 0 : Infinity;

@@ -17,7 +17,7 @@
  *   - IVOA VOUnits 1.0 (Derriere et al. 2014): syntax, "u" for micro, symbol spellings.
  */
 import { describe, expect, it } from 'vitest';
-import { Decimal } from 'decimal.js';
+import { reference } from '../support/reference.js';
 import fc from 'fast-check';
 import {
   DIMENSIONS,
@@ -37,21 +37,8 @@ import {
 // ---------------------------------------------------------------------------
 // Reference arithmetic
 
-const R = Decimal.clone({ precision: 40 });
+const { D: R, exact: dec } = reference(40);
 type Ref = InstanceType<typeof R>;
-
-/** The exact binary value of a double as a 40-digit Decimal (not its shortest decimal string). */
-function dec(x: number): Ref {
-  if (!Number.isFinite(x)) throw new Error(`not finite: ${x}`);
-  if (x === 0) return new R(0);
-  let mant = x;
-  let pow2 = 0;
-  while (!Number.isInteger(mant)) {
-    mant *= 2; // exact in binary floating point
-    pow2 += 1;
-  }
-  return new R(BigInt(mant).toString()).div(new R(2).pow(pow2));
-}
 
 /** Relative error of a double against a Decimal reference (a zero reference demands exactly 0). */
 function relErr(x: number, ref: Ref): number {
