@@ -37,7 +37,7 @@ import type { Config } from '../server/config.js';
 import { body as readBody, length, quantity, scalar, type BodyInfo } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
 import { InputError, joinPointer } from '../server/problems.js';
-import { Body, LENGTH_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
+import { Body, OrbitDirection, LENGTH_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
 
 // ---------------------------------------------------------------------------
 // Schemas
@@ -49,11 +49,7 @@ const TIME_UNITS = ['s', 'ms', 'us', 'min', 'h', 'd', 'yr'] as const;
 const MotionSchema = (kinds: readonly string[], description: string) =>
   Type.Unsafe<'static' | 'circular' | 'moving'>({ type: 'string', enum: [...kinds], description });
 
-const Direction = Type.Unsafe<'prograde' | 'retrograde'>({
-  type: 'string',
-  enum: ['prograde', 'retrograde'],
-  description: 'Circular orbits only: "prograde" (default) co-rotates with the hole when spin > 0, "retrograde" counter-rotates.',
-});
+const Direction = OrbitDirection;
 
 const PolarAngle = Quantity(
   'Static clocks only: polar angle theta from the spin axis (Boyer-Lindquist), 0..pi; matters only for a spinning hole. Default pi/2 (equatorial plane).',

@@ -33,7 +33,7 @@ import { body as readBody, length, quantity, scalar, spectral, type BodyInfo, ty
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
 import { InputError, joinPointer } from '../server/problems.js';
 import type { QuantityInput } from '../server/schemas.js';
-import { Body, LENGTH_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod } from '../server/schemas.js';
+import { Body, OrbitDirection, LENGTH_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod } from '../server/schemas.js';
 
 // ---------------------------------------------------------------------------
 // Schemas
@@ -51,11 +51,7 @@ const Motion = Type.Unsafe<'static' | 'circular'>({
     '"circular": on a circular equatorial geodesic, seen face-on (photons of zero axial angular momentum), 1+z = u^t (outside the photon orbit only).',
 });
 
-const Direction = Type.Unsafe<'prograde' | 'retrograde'>({
-  type: 'string',
-  enum: ['prograde', 'retrograde'],
-  description: 'Circular orbits only. "prograde" (default): co-rotating with the hole when spin > 0 (signed spin a); "retrograde": signed spin -a. A negative spin swaps the senses.',
-});
+const Direction = OrbitDirection;
 
 const PolarAngle = Quantity(
   'Polar angle of a static emitter from the spin axis (Boyer-Lindquist theta, 0 to pi). Default pi/2 (equatorial); circular orbits are equatorial (only pi/2 is accepted).',
@@ -308,6 +304,25 @@ function finiteReply(out: Record<string, unknown>, vars: readonly Variable[], ba
   }
   const why = worstRel >= 0 ? ` (the uncertainty of ${worst} is too large to propagate)` : '';
   throw new PhysicsDomainError(`the result ${bad} overflows the double range for these inputs${why}`, 'inputs whose results and uncertainties are finite doubles', worst);
+}
+
+/** Flags shared by the forward and inverse routes: unstable orbit, below a preset's surface, and
+ * linear propagation too close to a singular boundary. */
+function emitterWarnings(em: EmitterInfo, b: Pick<BodyInfo, 'preset' | 'spin'>, linear: boolean) {
+  return (nominal: Outputs, get: (key: string) => Measured): Warning[] => {
+    const w: Warning[] = [];
+    if (em.motion === 'circular' && nominal.stable === 0) w.push(unstableWarning(nominal.r / nominal.rg, em.sign * b.spin.value, em.direction));
+    if (b.preset && nominal.height_above_surface < 0) w.push(belowSurfaceWarning(b.preset, nominal.height_above_surface));
+    if (linear) {
+      w.push(
+        ...linearityWarning(get, [
+          { key: 'margin', what: boundaryName(em.motion, b.spin.value === 0 && b.spin.sigma === 0) },
+          { key: 'height_above_horizon', what: 'the horizon' },
+        ]),
+      );
+    }
+    return w;
+  };
 }
 
 function unstableWarning(rRg: number, signedSpin: number, direction: Dir): Warning {
@@ -804,20 +819,7 @@ export async function redshiftRoutes(app: FastifyInstance, opts: { config: Confi
           }
           return finiteReply(out, vars, '', setup.posPointer);
         },
-        warnings: (nominal, get) => {
-          const w: Warning[] = [];
-          if (em.motion === 'circular' && nominal.stable === 0) w.push(unstableWarning(nominal.r / nominal.rg, em.sign * b.spin.value, em.direction));
-          if (b.preset && nominal.height_above_surface < 0) w.push(belowSurfaceWarning(b.preset, nominal.height_above_surface));
-          if (linear) {
-            w.push(
-              ...linearityWarning(get, [
-                { key: 'margin', what: boundaryName(em.motion, b.spin.value === 0 && b.spin.sigma === 0) },
-                { key: 'height_above_horizon', what: 'the horizon' },
-              ]),
-            );
-          }
-          return w;
-        },
+        warnings: emitterWarnings(em, b, linear),
         model,
         references: referencesOf(model, em.motion, false),
       };
@@ -897,20 +899,7 @@ export async function redshiftRoutes(app: FastifyInstance, opts: { config: Confi
           }
           return finiteReply(out, vars, base, shift.pointer);
         },
-        warnings: (nominal, get) => {
-          const w: Warning[] = [];
-          if (em.motion === 'circular' && nominal.stable === 0) w.push(unstableWarning(nominal.r / nominal.rg, em.sign * b.spin.value, em.direction));
-          if (b.preset && nominal.height_above_surface < 0) w.push(belowSurfaceWarning(b.preset, nominal.height_above_surface));
-          if (linear) {
-            w.push(
-              ...linearityWarning(get, [
-                { key: 'margin', what: boundaryName(em.motion, b.spin.value === 0 && b.spin.sigma === 0) },
-                { key: 'height_above_horizon', what: 'the horizon' },
-              ]),
-            );
-          }
-          return w;
-        },
+        warnings: emitterWarnings(em, b, linear),
         model,
         references: referencesOf(model, em.motion, true),
       };

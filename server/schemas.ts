@@ -77,6 +77,14 @@ export const Body = Type.Object(
 );
 export type BodyInput = Static<typeof Body>;
 
+/** Sense of a circular equatorial orbit (signed spin a for prograde, -a for retrograde). */
+export const OrbitDirection = Type.Unsafe<'prograde' | 'retrograde'>({
+  type: 'string',
+  enum: ['prograde', 'retrograde'],
+  description:
+    'Circular orbits only. "prograde" (default): co-rotating with the hole when spin > 0 (signed spin a); "retrograde": counter-rotating (signed spin -a). A negative spin swaps the senses.',
+});
+
 export const UncertaintyMethod = Type.Object(
   {
     kind: Type.Unsafe<'linear' | 'monte-carlo'>({
