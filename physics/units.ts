@@ -130,6 +130,7 @@ export const DIMENSIONS = {
   velocity: { dim: [1, 0, -1, 0] as Dim, si: 'm.s-1', examples: ['m/s', 'km/s', 'm.s-1'] },
   gm: { dim: [3, 0, -2, 0] as Dim, si: 'm3.s-2', examples: ['m3.s-2', 'km3.s-2'] },
   angular_frequency: { dim: [0, 0, -1, 1] as Dim, si: 'rad.s-1', examples: ['rad/s', 'rad.s-1'] },
+  angular_momentum: { dim: [2, 1, -1, 0] as Dim, si: 'kg.m2.s-1', examples: ['kg.m2.s-1', 'kg.m2/s', 'J.s'] },
   dimensionless: { dim: NONE, si: '', examples: [''] },
 } as const;
 

@@ -77,6 +77,8 @@ export interface BodyInfo {
   preset?: 'sun' | 'earth';
   /** Reference surface radius of a preset body, m. */
   surfaceRadius?: number;
+  /** Spin angular momentum of a weak-field body, kg m^2 s^-1, when given. */
+  angularMomentum?: Uncertain;
   /** Pointers of the inputs, for messages. */
   gmPointer: string;
   spinPointer: string;
@@ -84,6 +86,16 @@ export interface BodyInfo {
 
 /** Reads the `body` object (../shared/design/api.md, "The central body"). */
 export function body(input: BodyInput, pointer: string): BodyInfo {
+  const info = bodyMass(input, pointer);
+  if (input.angular_momentum !== undefined) {
+    const p = joinPointer(pointer, 'angular_momentum');
+    if (input.spin !== undefined) fail(p, 'give spin (black holes) or angular_momentum (weak-field bodies), not both');
+    info.angularMomentum = quantity(input.angular_momentum, p, 'angular_momentum');
+  }
+  return info;
+}
+
+function bodyMass(input: BodyInput, pointer: string): BodyInfo {
   const given = (['mass', 'gm', 'preset'] as const).filter((k) => input[k] !== undefined);
   if (given.length !== 1) {
     fail(pointer, given.length === 0 ? 'needs one of mass, gm or preset' : `give exactly one of mass, gm or preset (got ${given.join(' and ')})`);

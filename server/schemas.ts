@@ -75,7 +75,26 @@ export const Body = Type.Object(
     description: 'The central body: exactly one of mass, gm or preset, and an optional spin.',
   },
 );
-export type BodyInput = Static<typeof Body>;
+export type BodyInput = Static<typeof Body> & { angular_momentum?: QuantityInput };
+
+/** A body that may also carry a spin angular momentum (weak-field frame dragging). */
+export const RotatingBody = Type.Object(
+  {
+    ...Body.properties,
+    angular_momentum: Type.Optional(
+      Quantity(
+        'Spin angular momentum J of a weak-field body (planet, star), for frame-dragging (Lense-Thirring) rates; a black hole takes `spin` instead. Not together with spin.',
+        'kg.m2.s-1',
+        ['kg.m2.s-1', 'kg.m2/s', 'J.s'],
+        { positive: true },
+      ),
+    ),
+  },
+  {
+    additionalProperties: false,
+    description: 'The central body: exactly one of mass, gm or preset; a black hole\'s spin, or a weak-field body\'s angular_momentum.',
+  },
+);
 
 /** Sense of a circular equatorial orbit (signed spin a for prograde, -a for retrograde). */
 export const OrbitDirection = Type.Unsafe<'prograde' | 'retrograde'>({
