@@ -122,8 +122,10 @@ function bodyMass(input: BodyInput, pointer: string): BodyInfo {
   const m = quantity(input.mass!, p, 'mass');
   // A mass in solMass (or another nominal unit) converts through its nominal GM, never through G;
   // a mass in kg goes through G (CODATA 2018), whose own uncertainty is not propagated.
-  const gmPerUnit = m.gmPerUnit ?? G;
-  const gm = { value: raw.value * gmPerUnit, sigma: raw.sigma * gmPerUnit };
+  const gm =
+    m.gmPerUnit !== undefined
+      ? { value: raw.value * m.gmPerUnit, sigma: raw.sigma * m.gmPerUnit }
+      : { value: m.value * G, sigma: m.sigma * G }; // kg (m.value is SI) through G
   if (!Number.isFinite(gm.value) || !Number.isFinite(gm.sigma) || !(gm.value > 0)) {
     fail(p, `gives GM = ${gm.value} m3.s-2, outside the representable range (0, 1e300]`);
   }
