@@ -11,7 +11,7 @@ import { makeConfig, type Config } from '../server/config.js';
 
 const apps: FastifyInstance[] = [];
 async function make(overrides: Partial<Config> = {}, logStream?: NodeJS.WritableStream) {
-  const app = await buildApp(makeConfig({ LOG_LEVEL: 'silent', RATE_LIMIT_MAX: 0, ...overrides }), { logStream });
+  const app = await buildApp(makeConfig({ LOG_LEVEL: 'silent', RATE_LIMIT_MAX: 0, MAX_EVENT_LOOP_DELAY_MS: 0, ...overrides }), { logStream });
   apps.push(app);
   return app;
 }

@@ -12,7 +12,7 @@ const D = Decimal.clone({ precision: 45 });
 let app: FastifyInstance;
 
 beforeAll(async () => {
-  app = await buildApp(makeConfig({ LOG_LEVEL: 'silent', RATE_LIMIT_MAX: 0, BATCH_MAX: 50 }));
+  app = await buildApp(makeConfig({ LOG_LEVEL: 'silent', RATE_LIMIT_MAX: 0, MAX_EVENT_LOOP_DELAY_MS: 0, BATCH_MAX: 50 }));
   await app.ready();
 });
 afterAll(async () => app.close());
