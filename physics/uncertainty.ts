@@ -92,7 +92,8 @@ function riddersFrom(model: Model, x: readonly number[], v: Variable, i: number,
   const above = v.hi - xi;
   const room = Math.min(below, above);
   // Central differences need room on both sides; at (or extremely near) an edge go one-sided inward.
-  const central = room > 0 && xi + 0.25 * room !== xi && xi - 0.25 * room !== xi;
+  // (Central steps are at most 0.1 room and shrink 40-fold: they must stay well above an ulp of x.)
+  const central = room > 0 && room > 1e-12 * Math.abs(xi);
   const dir = central ? 0 : above >= below ? 1 : -1;
   let h = central ? Math.min(scale, 0.1 * room) : Math.min(scale, 0.1 * Math.max(above, below));
   if (!(h > 0) || !Number.isFinite(h)) throw new RangeError(`no room to differentiate with respect to ${v.name}`);
