@@ -49,6 +49,11 @@ export interface CaseRoute<C> {
   caseSchema: TSchema;
   resultSchema: TSchema;
   prepare: (input: C, ctx: CaseContext) => Prepared;
+  /**
+   * Other representations of a single-case reply, by media type (e.g. "image/svg+xml"): chosen
+   * when the request's Accept header names the type; the function gets the JSON reply object.
+   */
+  renderers?: Record<string, (result: Record<string, unknown>) => string>;
 }
 
 const DEFAULT_SAMPLES = 10000;
@@ -147,6 +152,7 @@ export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route
         summary: route.summary,
         description: route.description,
         tags: route.tags,
+        ...(route.renderers ? { produces: ['application/json', ...Object.keys(route.renderers)] } : {}),
         body: CaseOrBatch(route.caseSchema, config.BATCH_MAX),
         response: {
           200: ResultOrBatch(route.resultSchema),
@@ -196,6 +202,9 @@ export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route
           reply.code(only.status).type('application/problem+json');
           return { ...only, instance: request.url, request_id: request.id };
         }
+        const accept = request.headers.accept;
+        const media = accept && route.renderers ? Object.keys(route.renderers).find((m) => accept.includes(m)) : undefined;
+        if (media) return reply.type(media).send(route.renderers![media](JSON.parse(only) as Record<string, unknown>));
         return reply.type('application/json; charset=utf-8').send(only);
       }
       const parts = results.map((r) => (typeof r === 'string' ? r : JSON.stringify({ error: r })));

@@ -17,6 +17,7 @@ export const ConfigSchema = Type.Object({
   BODY_LIMIT: Type.Integer({ minimum: 1024, maximum: 104857600, default: 10485760, description: 'Largest accepted request body, bytes.' }),
   BATCH_MAX: Type.Integer({ minimum: 1, maximum: 1000000, default: 10000, description: 'Most cases in one batch request.' }),
   MC_SAMPLES_MAX: Type.Integer({ minimum: 10, maximum: 10000000, default: 100000, description: 'Most Monte Carlo samples for one case.' }),
+  PULSES_MAX: Type.Integer({ minimum: 1, maximum: 10000000, default: 100000, description: 'Most pulses one infall timeline may return (413 above).' }),
   COMPUTE_BUDGET: Type.Integer({ minimum: 1000, maximum: 1000000000, default: 20000000, description: 'Most physics evaluations (cases x samples) one request may ask for.' }),
   RATE_LIMIT_MAX: Type.Integer({ minimum: 0, maximum: 10000000, default: 6000, description: 'Requests per window per client address; 0 turns rate limiting off.' }),
   RATE_LIMIT_WINDOW: Type.String({ minLength: 1, default: '1 minute', description: 'Rate-limit window, e.g. "1 minute", "10 seconds" or milliseconds.' }),
