@@ -5,10 +5,16 @@ import { constantsRoutes } from './constants.js';
 import { radiiRoutes } from './radii.js';
 import { redshiftRoutes } from './redshift.js';
 import { clockRateRoutes } from './clock-rate.js';
+import { orbitsCircularRoutes } from './orbits-circular.js';
+import { orbitsWeakRoutes } from './orbits-weak.js';
+import { binariesRoutes } from './binaries.js';
 
 export async function routes(app: FastifyInstance, opts: { config: Config }): Promise<void> {
   await app.register(constantsRoutes);
   await app.register(radiiRoutes, opts);
   await app.register(redshiftRoutes, opts);
   await app.register(clockRateRoutes, opts);
+  await app.register(orbitsCircularRoutes, opts);
+  await app.register(orbitsWeakRoutes, opts);
+  await app.register(binariesRoutes, opts);
 }

@@ -16,6 +16,8 @@ export function openapiDocument() {
       { name: 'radii', description: 'Characteristic radii of Kerr black holes.' },
       { name: 'redshift', description: 'Gravitational redshift of static and orbiting emitters, and its inversion to a radius or a mass.' },
       { name: 'clock-rate', description: 'Clock rates and fractional clock offsets in gravitational fields, and where a clock runs at a given rate.' },
+      { name: 'binaries', description: 'Binary pulsars: post-Keplerian parameters in general relativity, masses from measured ones, orbital decay and coalescence time.' },
+      { name: 'orbits', description: 'Orbits around massive bodies: circular orbits and their frequencies, the relativistic periastron advance, and gyroscope precession (geodetic and frame dragging).' },
     ],
   };
 }
