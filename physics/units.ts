@@ -53,6 +53,7 @@ const BASE: Record<string, BaseUnit> = {
   solMass: { factor: GM_SUN / G, dim: M, prefixable: false, gm: GM_SUN },
   earthMass: { factor: GM_EARTH_NOMINAL / G, dim: M, prefixable: false, gm: GM_EARTH_NOMINAL },
   jupiterMass: { factor: GM_JUPITER_NOMINAL / G, dim: M, prefixable: false, gm: GM_JUPITER_NOMINAL },
+  N: { factor: 1, dim: [1, 1, -2, 0], prefixable: true },
   min: { factor: 60, dim: T, prefixable: false },
   h: { factor: 3600, dim: T, prefixable: false },
   d: { factor: 86400, dim: T, prefixable: false },
@@ -130,6 +131,9 @@ export const DIMENSIONS = {
   velocity: { dim: [1, 0, -1, 0] as Dim, si: 'm.s-1', examples: ['m/s', 'km/s', 'm.s-1'] },
   gm: { dim: [3, 0, -2, 0] as Dim, si: 'm3.s-2', examples: ['m3.s-2', 'km3.s-2'] },
   angular_frequency: { dim: [0, 0, -1, 1] as Dim, si: 'rad.s-1', examples: ['rad/s', 'rad.s-1'] },
+  acceleration: { dim: [1, 0, -2, 0] as Dim, si: 'm.s-2', examples: ['m.s-2', 'm/s2', 'cm.s-2', 'km.s-2'] },
+  force: { dim: [1, 1, -2, 0] as Dim, si: 'N', examples: ['N', 'kN', 'MN', 'mN', 'kg.m.s-2'] },
+  density: { dim: [-3, 1, 0, 0] as Dim, si: 'kg.m-3', examples: ['kg.m-3', 'kg/m3', 'g.cm-3', 'g/cm3'] },
   angular_momentum: { dim: [2, 1, -1, 0] as Dim, si: 'kg.m2.s-1', examples: ['kg.m2.s-1', 'kg.m2/s', 'J.s'] },
   dimensionless: { dim: NONE, si: '', examples: [''] },
 } as const;
@@ -140,7 +144,8 @@ export type DimensionName = keyof typeof DIMENSIONS;
 export function toSI(value: number, unit: string, want: DimensionName): { value: number; factor: number; gm?: number } {
   const info = parseUnit(unit);
   if (!sameDim(info.dim, DIMENSIONS[want].dim)) {
-    throw new UnitError(`unit "${unit}" is not a ${want.replace('_', ' ')}`);
+    const name = want.replace('_', ' ');
+    throw new UnitError(`unit "${unit}" is not ${/^[aeiou]/.test(name) ? 'an' : 'a'} ${name} unit`);
   }
   return { value: value * info.factor, factor: info.factor, gm: info.gm };
 }

@@ -32,32 +32,24 @@ import {
   transverseTidalRate,
 } from '../physics/tides.js';
 import type { Measured, Outputs, Variable } from '../physics/uncertainty.js';
-import { UnitError, parseUnit, sameDim, type Dim } from '../physics/units.js';
+import { DIMENSIONS } from '../physics/units.js';
 import { registerCaseRoute, type Prepared, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { body as readBody, length, quantity, scalar, type BodyInfo, type Uncertain } from '../server/inputs.js';
+import { body as readBody, length, massAsGm, quantity, scalar, type BodyInfo, type Uncertain } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
 import { InputError } from '../server/problems.js';
 import { Body, LENGTH_UNITS, MASS_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
 
 // ---------------------------------------------------------------------------
-// Units this module reads itself (physics/units.ts has no acceleration, force or density family)
+// Units of the inputs
 
 const OBJECT_LENGTH_UNITS = ['m', 'km', 'cm', 'mm', 'um', 'nm'] as const;
 const BODY_SIZE_UNITS = ['m', 'km', 'solRad', 'AU'] as const;
-const ACCELERATION_UNITS = ['m.s-2', 'm/s2', 'cm.s-2', 'km.s-2'] as const;
-const FORCE_UNITS = ['N', 'kN', 'MN', 'mN', 'kg.m.s-2'] as const;
-const DENSITY_UNITS = ['kg.m-3', 'kg/m3', 'g.cm-3', 'g/cm3'] as const;
+const ACCELERATION_UNITS = DIMENSIONS.acceleration.examples;
+const FORCE_UNITS = DIMENSIONS.force.examples;
+const DENSITY_UNITS = DIMENSIONS.density.examples;
+type Family = 'acceleration' | 'force' | 'density';
 
-const FAMILIES = {
-  acceleration: { dim: [1, 0, -2, 0] as Dim, si: 'm.s-2', accepted: ACCELERATION_UNITS },
-  force: { dim: [1, 1, -2, 0] as Dim, si: 'N', accepted: FORCE_UNITS },
-  density: { dim: [-3, 1, 0, 0] as Dim, si: 'kg.m-3', accepted: DENSITY_UNITS },
-} as const;
-type Family = keyof typeof FAMILIES;
-
-/** SI prefixes accepted on the newton (VOUnits 1.0 Table 1, a subset). */
-const NEWTON_PREFIX: Record<string, number> = { '': 1, k: 1e3, M: 1e6, G: 1e9, m: 1e-3, u: 1e-6, n: 1e-9 };
 
 /** Threshold on (object size)/r above which the linear (geodesic deviation) result is flagged. */
 const SMALL_OBJECT_LIMIT = 1e-2;
@@ -303,32 +295,10 @@ function finiteOrFail(q: Uncertain, pointer: string, unit: string): Uncertain {
   return q;
 }
 
-/** Factor to SI of a unit of the given family, or undefined when it is not one. */
-function familyFactor(unit: string, family: Family): number | undefined {
-  if (family === 'force') {
-    const m = /^(k|M|G|m|u|n)?N$/.exec(unit.trim());
-    if (m) return NEWTON_PREFIX[m[1] ?? ''];
-  }
-  try {
-    const info = parseUnit(unit);
-    return sameDim(info.dim, FAMILIES[family].dim) ? info.factor : undefined;
-  } catch (err) {
-    if (err instanceof UnitError) return undefined;
-    throw err;
-  }
-}
 
-/** An acceleration, force or density in SI (physics/units.ts has no such family). */
+/** An acceleration, force or density in SI. */
 function readFamily(input: QuantityInput, pointer: string, family: Family): Uncertain {
-  const f = FAMILIES[family];
-  if (typeof input === 'number') return finiteOrFail({ value: input, sigma: 0 }, pointer, f.si);
-  let factor = 1;
-  if (input.unit !== undefined) {
-    const k = familyFactor(input.unit, family);
-    if (k === undefined) fail(pointer + '/unit', `unit "${input.unit}" is not ${family === 'acceleration' ? 'an' : 'a'} ${family} unit read here; accepted units for this field: ${f.accepted.join(', ')} (default ${f.si})`);
-    factor = k;
-  }
-  return finiteOrFail({ value: input.value * factor, sigma: (input.uncertainty ?? 0) * factor }, pointer, f.si);
+  return finiteOrFail(quantity(input, pointer, family), pointer, DIMENSIONS[family].si);
 }
 
 /** A length in metres only (object sizes, star radii): body-relative units are refused. */
@@ -340,12 +310,7 @@ function readMetres(input: QuantityInput, pointer: string): Uncertain {
 }
 
 /** A mass as a mass parameter GM (m^3 s^-2): solMass and the like through their nominal GM, kg through G. */
-function readMassAsGm(input: QuantityInput, pointer: string): Uncertain {
-  const raw = typeof input === 'number' ? { value: input, sigma: 0 } : { value: input.value, sigma: input.uncertainty ?? 0 };
-  const m = quantity(input, pointer, 'mass');
-  const gm = m.gmPerUnit !== undefined ? { value: raw.value * m.gmPerUnit, sigma: raw.sigma * m.gmPerUnit } : { value: m.value * G, sigma: m.sigma * G }; // CODATA 2018 G for kg
-  return finiteOrFail(gm, pointer, 'm3.s-2 (as GM)');
-}
+const readMassAsGm = massAsGm;
 
 /** A length that may be body-relative: its variable is in metres or in rg. */
 function readRadius(input: QuantityInput, pointer: string): { value: number; sigma: number; unit: 'm' | 'rg' } {

@@ -118,18 +118,25 @@ function bodyMass(input: BodyInput, pointer: string): BodyInfo {
     return { gm, spin, gmPointer: p, spinPointer };
   }
   const p = joinPointer(pointer, 'mass');
-  const raw = split(input.mass!);
-  const m = quantity(input.mass!, p, 'mass');
-  // A mass in solMass (or another nominal unit) converts through its nominal GM, never through G;
-  // a mass in kg goes through G (CODATA 2018), whose own uncertainty is not propagated.
+  return { gm: massAsGm(input.mass!, p), spin, gmPointer: p, spinPointer };
+}
+
+/**
+ * A mass input as its mass parameter GM (m^3 s^-2): a mass in solMass (or another nominal unit)
+ * converts through its nominal GM (IAU 2015 B3), never through G; a mass in kg goes through G
+ * (CODATA 2018), whose own uncertainty is not propagated.
+ */
+export function massAsGm(input: QuantityInput, pointer: string): Uncertain {
+  const raw = split(input);
+  const m = quantity(input, pointer, 'mass');
   const gm =
     m.gmPerUnit !== undefined
       ? { value: raw.value * m.gmPerUnit, sigma: raw.sigma * m.gmPerUnit }
       : { value: m.value * G, sigma: m.sigma * G }; // kg (m.value is SI) through G
   if (!Number.isFinite(gm.value) || !Number.isFinite(gm.sigma) || !(gm.value > 0)) {
-    fail(p, `gives GM = ${gm.value} m3.s-2, outside the representable range (0, 1e300]`);
+    fail(pointer, `gives GM = ${gm.value} m3.s-2, outside the representable range (0, 1e300]`);
   }
-  return { gm, spin, gmPointer: p, spinPointer };
+  return gm;
 }
 
 export interface SpectralInput extends Uncertain {

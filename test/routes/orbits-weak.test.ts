@@ -453,8 +453,8 @@ describe('POST /v1/orbits/gyroscope', () => {
       [{ body: { preset: 'earth', spin: 0.1 }, r: 7e6, inclination: 1 }, '/body/spin', /angular_momentum/],
       [{ body: { gm: 1e20, spin: 0.1, angular_momentum: 1e40 }, r: 1e9, inclination: 1 }, '/body/angular_momentum', /not both/],
       [{ body: { preset: 'earth' }, r: { value: 7000, unit: 's' }, inclination: 1 }, '/r/unit', /not a length/],
-      [{ body: { preset: 'earth' }, r: 7e6, inclination: { value: 1, unit: 'm' } }, '/inclination/unit', /not a angle/],
-      [{ body: { preset: 'earth', angular_momentum: { value: 1, unit: 'kg' } }, r: 7e6, inclination: 1 }, '/body/angular_momentum/unit', /not a angular momentum/],
+      [{ body: { preset: 'earth' }, r: 7e6, inclination: { value: 1, unit: 'm' } }, '/inclination/unit', /not an angle unit/],
+      [{ body: { preset: 'earth', angular_momentum: { value: 1, unit: 'kg' } }, r: 7e6, inclination: 1 }, '/body/angular_momentum/unit', /not an angular momentum unit/],
       [{ body: { preset: 'earth' }, r: 7e6 }, '/inclination', /.+/],
     ];
     for (const [req, pointer, message] of cases) {
