@@ -31,7 +31,7 @@ import { PhysicsDomainError } from '../physics/errors.js';
 import type { Outputs, Variable } from '../physics/uncertainty.js';
 import { registerCaseRoute, type Prepared, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { quantity, scalar, type Uncertain } from '../server/inputs.js';
+import { massAsGm, quantity, scalar, type Uncertain } from '../server/inputs.js';
 import { dimensional, dimensionless } from '../server/outputs.js';
 import { InputError } from '../server/problems.js';
 import { MASS_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
@@ -150,11 +150,7 @@ function finiteOrFail(u: Uncertain, pointer: string, what: string, input: Quanti
 
 /** A mass as its mass parameter in time units, G m / c^3 (s): nominal GM per unit for solMass & co., G for kg. */
 function readMass(input: QuantityInput, pointer: string): Uncertain {
-  const q = quantity(input, pointer, 'mass');
-  const raw = typeof input === 'number' ? { value: input, sigma: 0 } : { value: input.value, sigma: input.uncertainty ?? 0 };
-  // A unit with a nominal GM (solMass, earthMass, jupiterMass, g, kg) converts through it; any
-  // other mass unit string has been converted to kg by quantity() and goes through G.
-  const gm = q.gmPerUnit !== undefined ? { value: raw.value * q.gmPerUnit, sigma: raw.sigma * q.gmPerUnit } : { value: q.value * G, sigma: q.sigma * G };
+  const gm = massAsGm(input, pointer); // solMass etc. through the nominal GM, kg through G
   const t = { value: gm.value / C3, sigma: gm.sigma / C3 }; // G m / c^3, s
   finiteOrFail(t, pointer, 'G m / c^3', input);
   return t;
