@@ -8,6 +8,7 @@ import { clockRateRoutes } from './clock-rate.js';
 import { orbitsCircularRoutes } from './orbits-circular.js';
 import { orbitsWeakRoutes } from './orbits-weak.js';
 import { binariesRoutes } from './binaries.js';
+import { tidesRoutes } from './tides.js';
 
 export async function routes(app: FastifyInstance, opts: { config: Config }): Promise<void> {
   await app.register(constantsRoutes);
@@ -17,4 +18,5 @@ export async function routes(app: FastifyInstance, opts: { config: Config }): Pr
   await app.register(orbitsCircularRoutes, opts);
   await app.register(orbitsWeakRoutes, opts);
   await app.register(binariesRoutes, opts);
+  await app.register(tidesRoutes, opts);
 }

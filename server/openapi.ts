@@ -17,6 +17,7 @@ export function openapiDocument() {
       { name: 'redshift', description: 'Gravitational redshift of static and orbiting emitters, and its inversion to a radius or a mass.' },
       { name: 'clock-rate', description: 'Clock rates and fractional clock offsets in gravitational fields, and where a clock runs at a given rate.' },
       { name: 'binaries', description: 'Binary pulsars: post-Keplerian parameters in general relativity, masses from measured ones, orbital decay and coalescence time.' },
+      { name: 'tides', description: 'Tidal accelerations on a falling object, survival radius and proper time left; tidal disruption of stars (tidal radius, Hills mass) and Roche limits.' },
       { name: 'orbits', description: 'Orbits around massive bodies: circular orbits and their frequencies, the relativistic periastron advance, and gyroscope precession (geodetic and frame dragging).' },
     ],
   };
