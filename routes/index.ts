@@ -8,6 +8,8 @@ import { clockRateRoutes } from './clock-rate.js';
 import { orbitsCircularRoutes } from './orbits-circular.js';
 import { orbitsWeakRoutes } from './orbits-weak.js';
 import { binariesRoutes } from './binaries.js';
+import { lightRoutes } from './light.js';
+import { shadowRoutes } from './shadow.js';
 import { tidesRoutes } from './tides.js';
 
 export async function routes(app: FastifyInstance, opts: { config: Config }): Promise<void> {
@@ -18,5 +20,7 @@ export async function routes(app: FastifyInstance, opts: { config: Config }): Pr
   await app.register(orbitsCircularRoutes, opts);
   await app.register(orbitsWeakRoutes, opts);
   await app.register(binariesRoutes, opts);
+  await app.register(lightRoutes, opts);
+  await app.register(shadowRoutes, opts);
   await app.register(tidesRoutes, opts);
 }

@@ -17,8 +17,10 @@ export function openapiDocument() {
       { name: 'redshift', description: 'Gravitational redshift of static and orbiting emitters, and its inversion to a radius or a mass.' },
       { name: 'clock-rate', description: 'Clock rates and fractional clock offsets in gravitational fields, and where a clock runs at a given rate.' },
       { name: 'binaries', description: 'Binary pulsars: post-Keplerian parameters in general relativity, masses from measured ones, orbital decay and coalescence time.' },
-      { name: 'tides', description: 'Tidal accelerations on a falling object, survival radius and proper time left; tidal disruption of stars (tidal radius, Hills mass) and Roche limits.' },
       { name: 'orbits', description: 'Orbits around massive bodies: circular orbits and their frequencies, the relativistic periastron advance, and gyroscope precession (geodetic and frame dragging).' },
+      { name: 'light', description: 'Light propagation past a body: the Shapiro (excess) time delay, and the deflection of a ray in the weak field (PPN) and exactly in the Schwarzschild metric.' },
+      { name: 'shadow', description: 'The shadow of a Kerr black hole seen by a distant observer: outline in Bardeen celestial coordinates, diameters, angular size, SVG figure.' },
+      { name: 'tides', description: 'Tidal accelerations on a falling object, survival radius and proper time left; tidal disruption of stars (tidal radius, Hills mass) and Roche limits.' },
     ],
   };
 }
