@@ -11,6 +11,7 @@ import { binariesRoutes } from './binaries.js';
 import { lightRoutes } from './light.js';
 import { shadowRoutes } from './shadow.js';
 import { tidesRoutes } from './tides.js';
+import { infallRoutes } from './infall.js';
 
 export async function routes(app: FastifyInstance, opts: { config: Config }): Promise<void> {
   await app.register(constantsRoutes);
@@ -23,4 +24,5 @@ export async function routes(app: FastifyInstance, opts: { config: Config }): Pr
   await app.register(lightRoutes, opts);
   await app.register(shadowRoutes, opts);
   await app.register(tidesRoutes, opts);
+  await app.register(infallRoutes, opts);
 }

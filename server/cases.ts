@@ -166,6 +166,7 @@ export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route
       const batch = Array.isArray((body as { items?: unknown }).items);
       const inputs = (batch ? (body.items as C[]) : [body as C]);
       const errors: FieldError[] = [];
+      let inputStatus = 400; // the gravest input error decides (413 over 400)
       // Every case is read first, so that all input errors of a batch come back in one 400.
       const slots: Array<{ p: Prepared; pointer: string } | Problem> = inputs.map((input, i) => {
         const pointer = batch ? `/items/${i}` : '';
@@ -175,6 +176,7 @@ export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route
           if (err instanceof InputError) {
             // Routes point relative to their case; a batch item's pointers get its /items/N.
             if (errors.length < 100) errors.push(...err.errors.map((e) => ({ ...e, pointer: pointer + e.pointer })));
+            if (err.status > inputStatus) inputStatus = err.status;
             return problem(400);
           }
           const prob = physicsProblem(err, pointer);
@@ -182,7 +184,7 @@ export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route
           throw err;
         }
       });
-      if (errors.length > 0) throw new InputError(errors);
+      if (errors.length > 0) throw new InputError(errors, inputStatus);
       let total = 0;
       for (const slot of slots) {
         if (isProblem(slot)) continue;

@@ -21,6 +21,7 @@ export function openapiDocument() {
       { name: 'light', description: 'Light propagation past a body: the Shapiro (excess) time delay, and the deflection of a ray in the weak field (PPN) and exactly in the Schwarzschild metric.' },
       { name: 'shadow', description: 'The shadow of a Kerr black hole seen by a distant observer: outline in Bardeen celestial coordinates, diameters, angular size, SVG figure.' },
       { name: 'tides', description: 'Tidal accelerations on a falling object, survival radius and proper time left; tidal disruption of stars (tidal radius, Hills mass) and Roche limits.' },
+      { name: 'infall', description: 'Radial fall into a Schwarzschild black hole: the pulse timeline a static receiver records (arrival times, spacing, redshift), and the proper time to the horizon and to r = 0.' },
     ],
   };
 }
