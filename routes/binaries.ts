@@ -31,9 +31,8 @@ import { PhysicsDomainError } from '../physics/errors.js';
 import type { Outputs, Variable } from '../physics/uncertainty.js';
 import { registerCaseRoute, type Prepared, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { massAsGm, quantity, scalar, type Uncertain } from '../server/inputs.js';
+import { fail, massAsGm, quantity, scalar, type Uncertain } from '../server/inputs.js';
 import { dimensional, dimensionless } from '../server/outputs.js';
-import { InputError } from '../server/problems.js';
 import { MASS_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
 
 // ---------------------------------------------------------------------------
@@ -136,10 +135,6 @@ const REFS = {
 
 // ---------------------------------------------------------------------------
 // Reading inputs
-
-function fail(pointer: string, message: string): never {
-  throw new InputError([{ pointer, message }]);
-}
 
 const C3 = C * C * C;
 

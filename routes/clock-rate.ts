@@ -31,10 +31,10 @@ import {
 } from '../physics/clocks.js';
 import { PhysicsDomainError } from '../physics/errors.js';
 import * as kerr from '../physics/kerr.js';
-import type { Measured, Outputs, Variable } from '../physics/uncertainty.js';
+import type { Measured, Outputs } from '../physics/uncertainty.js';
 import { registerCaseRoute, type Prepared, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { body as readBody, length, quantity, scalar, type BodyInfo } from '../server/inputs.js';
+import { VarList, fail, body as readBody, length, quantity, scalar, type BodyInfo } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
 import { InputError, joinPointer } from '../server/problems.js';
 import { Body, OrbitDirection, LENGTH_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
@@ -232,18 +232,7 @@ const REFS = {
 
 type Motion = 'static' | 'circular' | 'moving';
 
-function fail(pointer: string, message: string): never {
-  throw new InputError([{ pointer, message }]);
-}
-
 /** The uncertain inputs of one case, in the order the model takes them. */
-class VarList {
-  readonly list: Variable[] = [];
-  add(v: Variable): number {
-    this.list.push(v);
-    return this.list.length - 1;
-  }
-}
 
 /** What the case says about the central body. */
 interface BodyPlan {

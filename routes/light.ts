@@ -12,12 +12,11 @@ import { Type, type Static } from '@sinclair/typebox';
 import { C } from '../physics/constants.js';
 import { PhysicsDomainError } from '../physics/errors.js';
 import { B_CRITICAL, criticalMargin, deflectionExact, deflectionFirstOrder, deflectionSecondOrderGR, shapiroDelay, turningPoint, type DelayGeometry } from '../physics/light.js';
-import type { Outputs, Variable } from '../physics/uncertainty.js';
+import type { Outputs } from '../physics/uncertainty.js';
 import { registerCaseRoute, type Prepared, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { body as readBody, length, scalar, type BodyInfo } from '../server/inputs.js';
+import { VarList, fail, body as readBody, length, scalar, type BodyInfo } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
-import { InputError } from '../server/problems.js';
 import { Body, LENGTH_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
 
 // ---------------------------------------------------------------------------
@@ -135,18 +134,6 @@ const REFS = {
 
 // ---------------------------------------------------------------------------
 // Reading inputs
-
-function fail(pointer: string, message: string): never {
-  throw new InputError([{ pointer, message }]);
-}
-
-class VarList {
-  readonly list: Variable[] = [];
-  add(v: Variable): number {
-    this.list.push(v);
-    return this.list.length - 1;
-  }
-}
 
 interface LengthVar {
   idx: number;

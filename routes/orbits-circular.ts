@@ -26,9 +26,9 @@ import { BracketError, RootNotConvergedError } from '../physics/roots.js';
 import type { Measured, Outputs, Variable } from '../physics/uncertainty.js';
 import { registerCaseRoute, type Prepared, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { body as readBody, length, quantity, scalar, type BodyInfo } from '../server/inputs.js';
+import { fail, body as readBody, length, quantity, scalar, type BodyInfo } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
-import { InputError, joinPointer } from '../server/problems.js';
+import { joinPointer } from '../server/problems.js';
 import { Body, LENGTH_UNITS, OrbitDirection, Provenance, Quantity, QuantityOut, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
 
 // ---------------------------------------------------------------------------
@@ -213,10 +213,6 @@ function referencesFor(kind: FrequencyKind | 'all', solved: boolean): string[] {
 
 // ---------------------------------------------------------------------------
 // Helpers
-
-function fail(pointer: string, message: string): never {
-  throw new InputError([{ pointer, message }]);
-}
 
 const TWO_PI = 2 * Math.PI;
 const LABEL: Record<FrequencyKind, string> = {

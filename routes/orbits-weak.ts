@@ -12,7 +12,7 @@ import { Type, type Static } from '@sinclair/typebox';
 import { C, G, JULIAN_YEAR } from '../physics/constants.js';
 import { PhysicsDomainError } from '../physics/errors.js';
 import * as kerr from '../physics/kerr.js';
-import type { Measured, Outputs, Variable } from '../physics/uncertainty.js';
+import type { Measured, Outputs } from '../physics/uncertainty.js';
 import {
   ARCSEC_PER_RAD,
   EARTH_GJ,
@@ -34,9 +34,8 @@ import {
 } from '../physics/weakfield.js';
 import { registerCaseRoute, type Prepared, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { body as readBody, length, quantity, scalar, type BodyInfo } from '../server/inputs.js';
+import { VarList, fail, body as readBody, length, quantity, scalar, type BodyInfo } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
-import { InputError } from '../server/problems.js';
 import { Body, LENGTH_UNITS, Provenance, Quantity, QuantityOut, RotatingBody, Scalar, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
 
 // ---------------------------------------------------------------------------
@@ -212,18 +211,6 @@ const REFS = {
 
 // ---------------------------------------------------------------------------
 // Reading inputs
-
-function fail(pointer: string, message: string): never {
-  throw new InputError([{ pointer, message }]);
-}
-
-class VarList {
-  readonly list: Variable[] = [];
-  add(v: Variable): number {
-    this.list.push(v);
-    return this.list.length - 1;
-  }
-}
 
 /** A length that may be body-relative: its variable is in metres or in rg. */
 function readLength(input: QuantityInput, pointer: string): { value: number; sigma: number; unit: 'm' | 'rg' } {

@@ -29,9 +29,9 @@ import type { Measured, Outputs, Variable } from '../physics/uncertainty.js';
 import { hzToSpectral, spectralToHz, type SpectralKind } from '../physics/units.js';
 import { findNonFinite, registerCaseRoute, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { body as readBody, length, quantity, scalar, spectral, type BodyInfo, type SpectralInput, type Uncertain } from '../server/inputs.js';
+import { fail, body as readBody, length, quantity, scalar, spectral, type BodyInfo, type SpectralInput, type Uncertain } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
-import { InputError, joinPointer } from '../server/problems.js';
+import { joinPointer } from '../server/problems.js';
 import type { QuantityInput } from '../server/schemas.js';
 import { Body, OrbitDirection, LENGTH_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod } from '../server/schemas.js';
 
@@ -181,10 +181,6 @@ const REFS = {
 
 type Motion = 'static' | 'circular';
 type Dir = 'prograde' | 'retrograde';
-
-function fail(pointer: string, message: string): never {
-  throw new InputError([{ pointer, message }]);
-}
 
 /** A number for a message: 10 significant digits. */
 function fmt(x: number): string {

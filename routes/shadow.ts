@@ -15,9 +15,8 @@ import { shadowEdges, shadowOutline } from '../physics/shadow.js';
 import type { Measured, Outputs, Variable } from '../physics/uncertainty.js';
 import { registerCaseRoute, type Prepared, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { body as readBody, length, quantity } from '../server/inputs.js';
+import { fail, body as readBody, length, quantity } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
-import { InputError } from '../server/problems.js';
 import { Body, Provenance, Quantity, QuantityOut, ScalarOut, UncertaintyMethod } from '../server/schemas.js';
 
 // ---------------------------------------------------------------------------
@@ -129,10 +128,6 @@ const REFS = {
 };
 
 // ---------------------------------------------------------------------------
-
-function fail(pointer: string, message: string): never {
-  throw new InputError([{ pointer, message }]);
-}
 
 function prepareShadow(input: ShadowCase): Prepared {
   const vars: Variable[] = [];

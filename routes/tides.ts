@@ -35,9 +35,8 @@ import type { Measured, Outputs, Variable } from '../physics/uncertainty.js';
 import { DIMENSIONS } from '../physics/units.js';
 import { registerCaseRoute, type Prepared, type Warning } from '../server/cases.js';
 import type { Config } from '../server/config.js';
-import { body as readBody, length, massAsGm, quantity, scalar, type BodyInfo, type Uncertain } from '../server/inputs.js';
+import { VarList, fail, body as readBody, length, massAsGm, quantity, scalar, type BodyInfo, type Uncertain } from '../server/inputs.js';
 import { dimensional, dimensionless, radius } from '../server/outputs.js';
-import { InputError } from '../server/problems.js';
 import { Body, LENGTH_UNITS, MASS_UNITS, Provenance, Quantity, QuantityOut, Scalar, ScalarOut, UncertaintyMethod, type QuantityInput } from '../server/schemas.js';
 
 // ---------------------------------------------------------------------------
@@ -49,7 +48,6 @@ const ACCELERATION_UNITS = DIMENSIONS.acceleration.examples;
 const FORCE_UNITS = DIMENSIONS.force.examples;
 const DENSITY_UNITS = DIMENSIONS.density.examples;
 type Family = 'acceleration' | 'force' | 'density';
-
 
 /** Threshold on (object size)/r above which the linear (geodesic deviation) result is flagged. */
 const SMALL_OBJECT_LIMIT = 1e-2;
@@ -278,23 +276,10 @@ const REFS = {
 // ---------------------------------------------------------------------------
 // Reading inputs
 
-function fail(pointer: string, message: string): never {
-  throw new InputError([{ pointer, message }]);
-}
-
-class VarList {
-  readonly list: Variable[] = [];
-  add(v: Variable): number {
-    this.list.push(v);
-    return this.list.length - 1;
-  }
-}
-
 function finiteOrFail(q: Uncertain, pointer: string, unit: string): Uncertain {
   if (!Number.isFinite(q.value) || !Number.isFinite(q.sigma) || !(q.value > 0)) fail(pointer, `gives ${q.value} ${unit}, outside the representable range (0, 1e300]`);
   return q;
 }
-
 
 /** An acceleration, force or density in SI. */
 function readFamily(input: QuantityInput, pointer: string, family: Family): Uncertain {

@@ -5,6 +5,7 @@
 import { C, GM_EARTH, GM_EARTH_SIGMA, GM_SUN, R_EARTH, R_SUN, G } from '../physics/constants.js';
 import { DIMENSIONS, UnitError, spectralKind, spectralToHz, toSI, type DimensionName, type SpectralKind } from '../physics/units.js';
 import { InputError, joinPointer } from './problems.js';
+import type { Variable } from '../physics/uncertainty.js';
 import type { BodyInput, QuantityInput, ScalarInput } from './schemas.js';
 
 export interface Uncertain {
@@ -21,7 +22,8 @@ function split(input: QuantityInput): { value: number; unit?: string; sigma: num
   return typeof input === 'number' ? { value: input, sigma: 0 } : { value: input.value, unit: input.unit, sigma: input.uncertainty ?? 0 };
 }
 
-function fail(pointer: string, message: string): never {
+/** Throws a 400 input error for one field (pointer relative to the case). */
+export function fail(pointer: string, message: string): never {
   throw new InputError([{ pointer, message }]);
 }
 
@@ -167,5 +169,14 @@ export function spectral(input: QuantityInput, pointer: string): SpectralInput {
       fail(pointer + '/unit', `${err.message}; accepted: a wavelength (m, nm, Angstrom, ...), a frequency (Hz, kHz, MHz, GHz) or a photon energy (eV, keV, J)`);
     }
     throw err;
+  }
+}
+
+/** The uncertain inputs of a case, in model order: `add` returns the variable's index in x[]. */
+export class VarList {
+  readonly list: Variable[] = [];
+  add(v: Variable): number {
+    this.list.push(v);
+    return this.list.length - 1;
   }
 }
