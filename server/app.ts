@@ -134,12 +134,19 @@ export async function buildApp(config: Config = makeConfig(), options: BuildOpti
   await app.register(metricsPlugin);
 
   if (config.MAX_EVENT_LOOP_DELAY_MS > 0) {
+    // Compiling the route schemas at start-up blocks the event loop for a while; the delay monitor
+    // would count that as overload and shed the first requests. Shedding starts two sampling
+    // intervals after the app is ready.
+    let shedFrom = Infinity;
+    app.addHook('onReady', async () => {
+      shedFrom = Date.now() + 2000;
+    });
     await app.register(underPressure, {
       maxEventLoopDelay: config.MAX_EVENT_LOOP_DELAY_MS,
       retryAfter: 5,
       // Returning a value makes under-pressure send it; returning nothing lets the request through.
       pressureHandler: ((request: FastifyRequest, reply: FastifyReply, type: string, value: number | undefined) => {
-        if (request.url === '/healthz' || request.url === '/metrics') return undefined;
+        if (request.url === '/healthz' || request.url === '/metrics' || Date.now() < shedFrom) return undefined;
         reply.code(503).header('retry-after', '5').type('application/problem+json');
         const p = problem(503, `the service is overloaded (${type}${value === undefined ? '' : ` ${Math.round(value)}`}); retry later`, undefined, 'overloaded');
         return { ...p, instance: request.url.split('?')[0], request_id: request.id };
