@@ -4,26 +4,13 @@
  * evaluated independently at 40 digits with decimal.js (Lorimer & Kramer 2005 eqs. 8.52-8.56),
  * and round trips through the HTTP API.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { FastifyInstance } from 'fastify';
-import { buildApp } from '../../server/app.js';
-import { makeConfig } from '../../server/config.js';
+import { describe, expect, it } from 'vitest';
+import { routeTestApp } from '../support/app.js';
 import { reference } from '../support/reference.js';
 
 const { D, exact, relErr } = reference(40);
 type Dec = InstanceType<typeof D>;
-let app: FastifyInstance;
-
-beforeAll(async () => {
-  app = await buildApp(makeConfig({ LOG_LEVEL: 'silent', RATE_LIMIT_MAX: 0, MAX_EVENT_LOOP_DELAY_MS: 0, BATCH_MAX: 50 }));
-  await app.ready();
-});
-afterAll(async () => app.close());
-
-async function post(url: string, payload: unknown) {
-  const res = await app.inject({ method: 'POST', url, payload: payload as object });
-  return { status: res.statusCode, body: res.json(), raw: res.body };
-}
+const { post } = routeTestApp();
 const timing = (p: unknown) => post('/v1/binaries/timing', p);
 const masses = (p: unknown) => post('/v1/binaries/masses', p);
 

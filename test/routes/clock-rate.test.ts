@@ -5,25 +5,12 @@
  * the HTTP API.
  */
 import { Decimal } from 'decimal.js';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { FastifyInstance } from 'fastify';
-import { buildApp } from '../../server/app.js';
-import { makeConfig } from '../../server/config.js';
+import { describe, expect, it } from 'vitest';
+import { routeTestApp } from '../support/app.js';
 
 const D = Decimal.clone({ precision: 50 });
 type Dec = InstanceType<typeof D>;
-let app: FastifyInstance;
-
-beforeAll(async () => {
-  app = await buildApp(makeConfig({ LOG_LEVEL: 'silent', RATE_LIMIT_MAX: 0, MAX_EVENT_LOOP_DELAY_MS: 0, BATCH_MAX: 50 }));
-  await app.ready();
-});
-afterAll(async () => app.close());
-
-async function post(url: string, payload: unknown) {
-  const res = await app.inject({ method: 'POST', url, payload: payload as object });
-  return { status: res.statusCode, body: res.json(), raw: res.body, headers: res.headers };
-}
+const { post } = routeTestApp();
 const forward = (p: unknown) => post('/v1/clock-rate', p);
 const inversion = (p: unknown) => post('/v1/clock-rate/inversion', p);
 

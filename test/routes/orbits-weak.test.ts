@@ -4,26 +4,13 @@
  * independently at 40 digits with decimal.js, closed-form uncertainty propagation, Monte Carlo
  * reproducibility, batches with per-item physics errors, and error documents.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { FastifyInstance } from 'fastify';
-import { buildApp } from '../../server/app.js';
-import { makeConfig } from '../../server/config.js';
+import { describe, expect, it } from 'vitest';
+import { routeTestApp } from '../support/app.js';
 import { reference } from '../support/reference.js';
 
 const { D, exact, relErr } = reference(40);
 type Dec = InstanceType<typeof D>;
-let app: FastifyInstance;
-
-beforeAll(async () => {
-  app = await buildApp(makeConfig({ LOG_LEVEL: 'silent', RATE_LIMIT_MAX: 0, MAX_EVENT_LOOP_DELAY_MS: 0, BATCH_MAX: 50 }));
-  await app.ready();
-});
-afterAll(async () => app.close());
-
-async function post(url: string, payload: unknown) {
-  const res = await app.inject({ method: 'POST', url, payload: payload as object });
-  return { status: res.statusCode, body: res.json(), raw: res.body, headers: res.headers };
-}
+const { post } = routeTestApp();
 const precession = (p: unknown) => post('/v1/orbits/precession', p);
 const gyroscope = (p: unknown) => post('/v1/orbits/gyroscope', p);
 
