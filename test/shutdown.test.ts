@@ -259,10 +259,17 @@ function slowBody(n: number, tag: number): string {
 
 /** Batch size for which one request takes about TARGET_REQUEST_MS on this machine now. */
 async function calibrate(port: number): Promise<number> {
-  await httpRequest(port, { method: 'POST', path: '/v1/radii', body: slowBody(1, 0) }); // warm-up
-  const r = await httpRequest(port, { method: 'POST', path: '/v1/radii', body: slowBody(1, 1) });
-  expect(r.status, r.text).toBe(200);
-  return Math.max(1, Math.min(8, Math.round(TARGET_REQUEST_MS / Math.max(1, r.ms))));
+  // Two warm-ups (the first requests run before the JIT has settled and would overestimate the
+  // cost), then the fastest of two timings, so that a request is not shorter than intended.
+  await httpRequest(port, { method: 'POST', path: '/v1/radii', body: slowBody(1, 0) });
+  await httpRequest(port, { method: 'POST', path: '/v1/radii', body: slowBody(1, 2) });
+  let best = Infinity;
+  for (const tag of [1, 3]) {
+    const r = await httpRequest(port, { method: 'POST', path: '/v1/radii', body: slowBody(1, tag) });
+    expect(r.status, r.text).toBe(200);
+    best = Math.min(best, r.ms);
+  }
+  return Math.max(2, Math.min(24, Math.round(TARGET_REQUEST_MS / Math.max(1, best))));
 }
 
 /** A 200 whose body is the complete batch reply: every item computed, Content-Length honoured. */
