@@ -18,6 +18,7 @@
  */
 import { C, GM_SUN } from './constants.js';
 import { PhysicsDomainError, describeNumber } from './errors.js';
+import { gaussLegendre } from './quadrature.js';
 
 /** Nominal solar mass parameter in time units, T_sun = GM_sun^N / c^3, s (IAU 2015 Resolution B3). */
 export const T_SUN = GM_SUN / (C * C * C);
@@ -122,34 +123,6 @@ const P_G = 121 / 304; // 1 + (121/304) e^2 in a(e) and in the integrand
 const P_EXP_INT = 1181 / 2299; // exponent of [1 + (121/304) e^2] in the integrand of eq. 5.14
 const P_EXP_C0 = 870 / 2299; // exponent of [1 + (121/304) e^2] in c0 (eq. 5.11)
 
-/** Gauss-Legendre nodes and weights on [-1, 1] (Newton iteration on P_n; Press et al., Numerical
- * Recipes 3rd ed., §4.6, routine gauleg). */
-function gaussLegendre(n: number): { x: Float64Array; w: Float64Array } {
-  const x = new Float64Array(n);
-  const w = new Float64Array(n);
-  const m = (n + 1) >> 1;
-  for (let i = 0; i < m; i++) {
-    let z = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let pp = 0;
-    for (let iter = 0; iter < 100; iter++) {
-      let p1 = 1;
-      let p2 = 0;
-      for (let j = 0; j < n; j++) {
-        const p3 = p2;
-        p2 = p1;
-        p1 = ((2 * j + 1) * z * p2 - j * p3) / (j + 1);
-      }
-      pp = (n * (z * p1 - p2)) / (z * z - 1);
-      const z1 = z;
-      z = z1 - p1 / pp;
-      if (Math.abs(z - z1) <= 1e-15) break;
-    }
-    x[i] = -z;
-    x[n - 1 - i] = z;
-    w[i] = w[n - 1 - i] = 2 / ((1 - z * z) * pp * pp);
-  }
-  return { x, w };
-}
 
 const GL = gaussLegendre(20);
 
