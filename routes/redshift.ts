@@ -302,6 +302,22 @@ function finiteReply(out: Record<string, unknown>, vars: readonly Variable[], ba
   throw new PhysicsDomainError(`the result ${bad} overflows the double range for these inputs${why}`, 'inputs whose results and uncertainties are finite doubles', worst);
 }
 
+/** The emitter's position in a reply (forward and inverse alike): r, its height, and orbit flags. */
+function shapePosition(out: Record<string, unknown>, get: (key: string) => Measured, nominal: Outputs, em: EmitterInfo, preset: boolean): void {
+  const rg = nominal.rg;
+  out.r = radius(get('r'), rg);
+  if (preset) {
+    out.height_above_surface = dimensional(get('height_above_surface'), 'm');
+  } else {
+    out.height_above_horizon = radius(get('height_above_horizon'), rg);
+    if (em.motion === 'static') out.height_above_static_limit = radius(get('height_above_static_limit'), rg);
+  }
+  if (em.motion === 'circular') {
+    out.direction = em.direction;
+    out.stable = nominal.stable === 1;
+  }
+}
+
 /** Flags shared by the forward and inverse routes: unstable orbit, below a preset's surface, and
  * linear propagation too close to a singular boundary. */
 function emitterWarnings(em: EmitterInfo, b: Pick<BodyInfo, 'preset' | 'spin'>, linear: boolean) {
@@ -788,7 +804,6 @@ export async function redshiftRoutes(app: FastifyInstance, opts: { config: Confi
         method: input.uncertainty_method,
         compute: (x) => guarded(setup.posPointer, () => forwardAt(setup, x)),
         shape: (get, nominal) => {
-          const rg = nominal.rg;
           const z = get('z');
           const omg = get('one_minus_g');
           // 1+z and g are affine in z and 1-g: their spreads come from those (full precision for tiny z).
@@ -802,17 +817,7 @@ export async function redshiftRoutes(app: FastifyInstance, opts: { config: Confi
             out.observed = dimensional(observedMeasured(get, nominal, rest, linear), rest.unit);
             out.shift = dimensional(get('shift'), rest.unit);
           }
-          out.r = radius(get('r'), rg);
-          if (b.preset) {
-            out.height_above_surface = dimensional(get('height_above_surface'), 'm');
-          } else {
-            out.height_above_horizon = radius(get('height_above_horizon'), rg);
-            if (em.motion === 'static') out.height_above_static_limit = radius(get('height_above_static_limit'), rg);
-          }
-          if (em.motion === 'circular') {
-            out.direction = em.direction;
-            out.stable = nominal.stable === 1;
-          }
+          shapePosition(out, get, nominal, em, b.preset !== undefined);
           return finiteReply(out, vars, '', setup.posPointer);
         },
         warnings: emitterWarnings(em, b, linear),
@@ -875,24 +880,13 @@ export async function redshiftRoutes(app: FastifyInstance, opts: { config: Confi
         method: input.uncertainty_method,
         compute: (x) => guarded(shift.pointer, () => inversionAt(setup, x)),
         shape: (get, nominal) => {
-          const rg = nominal.rg;
           const out: Record<string, unknown> = { z: dimensionless(get('z')) };
           if (solveFor === 'mass') {
             out.gm = dimensional(get('gm'), 'm3.s-2');
             out.mass = dimensional(get('mass'), 'kg');
             out.mass_solar = dimensionless(get('mass_solar'));
           }
-          out.r = radius(get('r'), rg);
-          if (b.preset) {
-            out.height_above_surface = dimensional(get('height_above_surface'), 'm');
-          } else {
-            out.height_above_horizon = radius(get('height_above_horizon'), rg);
-            if (em.motion === 'static') out.height_above_static_limit = radius(get('height_above_static_limit'), rg);
-          }
-          if (em.motion === 'circular') {
-            out.direction = em.direction;
-            out.stable = nominal.stable === 1;
-          }
+          shapePosition(out, get, nominal, em, b.preset !== undefined);
           return finiteReply(out, vars, base, shift.pointer);
         },
         warnings: emitterWarnings(em, b, linear),
