@@ -17,10 +17,11 @@ import { InputError, problem, type Problem } from './problems.js';
 import { explainAjvErrors } from './validation.js';
 import { openapiDocument } from './openapi.js';
 import { routes } from '../routes/index.js';
+import { RayService } from './rays.js';
 
 declare module 'fastify' {
   interface FastifyInstance {
-    lapse: { config: Config; draining: boolean };
+    lapse: { config: Config; draining: boolean; rays: RayService };
   }
 }
 
@@ -60,7 +61,11 @@ export async function buildApp(config: Config = makeConfig(), options: BuildOpti
     },
   }).withTypeProvider<TypeBoxTypeProvider>();
 
-  app.decorate('lapse', { config, draining: false });
+  const rays = new RayService(config);
+  app.decorate('lapse', { config, draining: false, rays });
+  app.addHook('onClose', async () => {
+    await rays.close();
+  });
   // JSON only: a text body is a 415, not a string the schema then rejects.
   app.removeContentTypeParser('text/plain');
 

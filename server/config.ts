@@ -25,6 +25,11 @@ export const ConfigSchema = Type.Object({
   REQUEST_TIMEOUT_MS: Type.Integer({ minimum: 0, maximum: 3600000, default: 30000, description: 'Time limit for receiving and answering one request, ms; 0 for none.' }),
   SHUTDOWN_GRACE_MS: Type.Integer({ minimum: 0, maximum: 600000, default: 10000, description: 'On SIGTERM/SIGINT, how long in-flight requests may take before the process exits, ms.' }),
   MAX_EVENT_LOOP_DELAY_MS: Type.Integer({ minimum: 0, maximum: 60000, default: 1000, description: 'Event-loop delay above which new requests are shed with 503; 0 turns shedding off.' }),
+  RAY_WORKERS: Type.Integer({ minimum: 0, maximum: 256, default: 0, description: 'Worker threads for ray tracing; 0 for one per available CPU.' }),
+  RAYS_MAX: Type.Integer({ minimum: 10000, maximum: 1000000000, default: 2000000, description: 'Most rays one request may ask to trace (413 above); cached geometries cost none.' }),
+  RAY_TIMEOUT_MS: Type.Integer({ minimum: 100, maximum: 3600000, default: 60000, description: 'Time limit of the ray tracing for one request, ms (503 when exceeded).' }),
+  RAY_QUEUE_MAX: Type.Integer({ minimum: 1, maximum: 100000, default: 256, description: 'Ray-tracing tasks that may wait for a worker thread (503 above).' }),
+  TRANSFER_CACHE_MB: Type.Integer({ minimum: 1, maximum: 65536, default: 256, description: 'Memory for cached line-profile transfer data (LRU), MiB.' }),
   TRUST_PROXY: Type.Boolean({ default: false, description: 'Trust X-Forwarded-* headers (behind an ingress).' }),
 });
 

@@ -1,0 +1,2 @@
+/** Cases run on the worker threads (see ray-worker.ts). */
+export {};
