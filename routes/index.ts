@@ -12,6 +12,7 @@ import { lightRoutes } from './light.js';
 import { shadowRoutes } from './shadow.js';
 import { tidesRoutes } from './tides.js';
 import { infallRoutes } from './infall.js';
+import { lineProfileRoutes } from './line-profile.js';
 
 export async function routes(app: FastifyInstance, opts: { config: Config }): Promise<void> {
   await app.register(constantsRoutes);
@@ -25,4 +26,5 @@ export async function routes(app: FastifyInstance, opts: { config: Config }): Pr
   await app.register(shadowRoutes, opts);
   await app.register(tidesRoutes, opts);
   await app.register(infallRoutes, opts);
+  await app.register(lineProfileRoutes, opts);
 }
