@@ -17,7 +17,7 @@ import { findNonFinite } from '../server/cases.js';
 import type { Config } from '../server/config.js';
 import { fail, length, lengthInRg, massAsGm, quantity, spectral, type LengthInput } from '../server/inputs.js';
 import { InputError, problem, type FieldError, type Problem } from '../server/problems.js';
-import { RayServiceError, type CachedTransfer } from '../server/rays.js';
+import { RayServiceError, requestSignal, sendRayServiceError, type CachedTransfer } from '../server/rays.js';
 import type { BinJob, BinResult, EmissivitySpec } from '../server/ray-worker.js';
 import { CaseOrBatch, LENGTH_UNITS, MASS_UNITS, ProblemSchema, Provenance, Quantity, ResultOrBatch, type QuantityInput } from '../server/schemas.js';
 import { lineProfileSvg } from './line-profile-svg.js';
@@ -41,14 +41,14 @@ const EmissivitySchema = Type.Union(
     Type.Number({ minimum: -10, maximum: 20, description: 'Shorthand for a power law: the index q of eps(r) proportional to r^-q (dimensionless).' }),
     Type.Object(
       {
-        kind: Type.Literal('power-law'),
+        kind: Type.Literal('power-law', { description: 'A power law.' }),
         index: Type.Number({ minimum: -10, maximum: 20, description: 'Index q of eps(r) proportional to r^-q (dimensionless); 3 is the usual choice far from the hole.' }),
       },
       { additionalProperties: false, description: 'Power-law emissivity per unit disk area, r^-index.' },
     ),
     Type.Object(
       {
-        kind: Type.Literal('broken-power-law'),
+        kind: Type.Literal('broken-power-law', { description: 'A broken power law.' }),
         index_inner: Type.Number({ minimum: -10, maximum: 20, description: 'Index inside the break radius (dimensionless).' }),
         index_outer: Type.Number({ minimum: -10, maximum: 20, description: 'Index outside the break radius (dimensionless).' }),
         break_radius: RadiusIn('Break radius, continuous emissivity across it.'),
@@ -57,7 +57,7 @@ const EmissivitySchema = Type.Union(
     ),
     Type.Object(
       {
-        kind: Type.Literal('table'),
+        kind: Type.Literal('table', { description: 'A table of values.' }),
         r: Type.Array(Type.Number({ exclusiveMinimum: 0, maximum: 1e300 }), { minItems: 2, maxItems: TABLE_MAX, description: 'Radii, strictly increasing, covering [r_in, r_out].' }),
         unit: Type.Optional(Type.String({ minLength: 1, maxLength: 64, description: 'Unit of r: rg (default), rs, or an SI length when the body has a mass.' })),
         value: Type.Array(Type.Number({ minimum: 0, maximum: 1e300 }), { minItems: 2, maxItems: TABLE_MAX, description: 'Emissivity at each radius (any scale, >= 0).' }),
@@ -138,7 +138,7 @@ const RadiusOut = (d: string) =>
     {
       rg: Type.Number({ description: `${d} In rg = GM/c^2.` }),
       value: Type.Optional(Type.Number({ description: `${d} In metres (when the body has a mass).` })),
-      unit: Type.Optional(Type.Literal('m')),
+      unit: Type.Optional(Type.Literal('m', { description: 'Unit of value: "m".' })),
     },
     { description: d },
   );
@@ -183,7 +183,7 @@ export const LineProfileResult = Type.Object({
     { description: 'The disk.' },
   ),
   spin: Type.Number({ description: 'Spin a* (dimensionless).' }),
-  inclination: Type.Object({ value: Type.Number({ description: 'Inclination, rad.' }), unit: Type.Literal('rad'), deg: Type.Number({ description: 'Inclination, deg.' }) }, { description: 'Inclination of the line of sight.' }),
+  inclination: Type.Object({ value: Type.Number({ description: 'Inclination, rad.' }), unit: Type.Literal('rad', { description: 'Unit of value: "rad".' }), deg: Type.Number({ description: 'Inclination, deg.' }) }, { description: 'Inclination of the line of sight.' }),
   rest: Spectral('The rest value of the line.'),
   ...Provenance,
 });
@@ -390,8 +390,7 @@ function shape(plan: Plan, t: CachedTransfer, res: BinResult): Record<string, un
 
 // ---------------------------------------------------------------------------
 
-function sendProblemReply(reply: FastifyReply, request: FastifyRequest, p: Problem, retryAfter?: number) {
-  if (retryAfter !== undefined) reply.header('retry-after', String(retryAfter));
+function sendProblemReply(reply: FastifyReply, request: FastifyRequest, p: Problem) {
   return reply
     .code(p.status)
     .type('application/problem+json')
@@ -462,11 +461,7 @@ export async function lineProfileRoutes(app: FastifyInstance, opts: { config: Co
       }
 
       // Cancellation: the client going away or the time limit aborts the pool tasks.
-      const gone = new AbortController();
-      reply.raw.on('close', () => {
-        if (!reply.raw.writableFinished) gone.abort(new Error('client closed the connection'));
-      });
-      const signal = AbortSignal.any([gone.signal, AbortSignal.timeout(config.RAY_TIMEOUT_MS)]);
+      const signal = requestSignal(reply, config);
       const results: Array<Record<string, unknown> | Problem> = slots.map((s) => s as Problem);
       try {
         await Promise.all(
@@ -494,14 +489,7 @@ export async function lineProfileRoutes(app: FastifyInstance, opts: { config: Co
           }),
         );
       } catch (err) {
-        if (err instanceof RayServiceError) {
-          if (err.reason === 'aborted') {
-            request.log.info('line-profile request cancelled by the client');
-            return sendProblemReply(reply, request, problem(503, 'the request was cancelled', undefined, 'cancelled'));
-          }
-          const kind = err.reason === 'timeout' ? 'compute-timeout' : 'overloaded';
-          return sendProblemReply(reply, request, problem(503, err.message + (err.reason === 'timeout' ? ': use a lower accuracy, fewer geometries per request, or retry when the service is less busy' : ''), undefined, kind), 1);
-        }
+        if (err instanceof RayServiceError) return sendRayServiceError(reply, request, err);
         throw err;
       }
       if (!batch) {

@@ -42,6 +42,12 @@ const SPECTRAL_UNITS = ['m', 'um', 'nm', 'Angstrom', 'Hz', 'kHz', 'MHz', 'GHz', 
 const ANGLE_UNITS = ['rad', 'deg', 'arcsec'] as const;
 const VELOCITY_UNITS = ['m/s', 'km/s', 'm.s-1', 'km.s-1'] as const;
 const SI_LENGTH_UNITS = LENGTH_UNITS.filter((u) => u !== 'rg' && u !== 'rs');
+/** Largest observer inclination for the orbital-phase range, deg (rays start in the orbit's plane at 90). */
+export const OBSERVER_INCLINATION_MAX_DEG = 89.9;
+/** Largest orbit radius for the orbital-phase range, rg. */
+export const PHASE_RANGE_R_MAX = 1e6;
+/** Rays one orbital-phase range may trace (counted against RAYS_MAX). */
+const PHASE_RANGE_RAYS = 4000;
 
 const Motion = Type.Unsafe<'static' | 'circular'>({
   type: 'string',
@@ -87,6 +93,14 @@ export const RedshiftCase = Type.Object(
     body: Body,
     emitter: Emitter,
     rest: Type.Optional(Spectral('Rest-frame (emitted) spectral value')),
+    observer_inclination: Type.Optional(
+      Quantity(
+        `Circular emitters only: inclination of a distant observer's line of sight to the orbit's axis, 0 (face-on) to ${OBSERVER_INCLINATION_MAX_DEG} deg (an observer below the plane at 180 deg - i sees the same). ` +
+          'Adds `orbital_phase_range`: the range of g (and 1+z) over the orbit, from ray tracing in the Kerr metric.',
+        'rad',
+        ANGLE_UNITS,
+      ),
+    ),
     uncertainty_method: Type.Optional(UncertaintyMethod),
   },
   { additionalProperties: false, description: 'One emitter around one central body.' },
@@ -139,6 +153,9 @@ const SpectralOut = (what: string) =>
     { description: what },
   );
 
+const SpectralOutBare = (what: string) =>
+  Type.Object({ value: Type.Number({ description: `${what}, in unit.` }), unit: Type.String({ description: 'The unit of rest as given.' }) }, { description: what });
+
 const PositionOut = {
   r: Len('Radius of the emitter (Boyer-Lindquist r).'),
   height_above_horizon: Type.Optional(Len('Height above the outer horizon r+ (black holes; not for preset bodies). Full relative precision near the horizon.')),
@@ -148,6 +165,23 @@ const PositionOut = {
   stable: Type.Optional(Type.Boolean({ description: 'Circular orbits: true at or outside the ISCO; false between the photon orbit and the ISCO (unstable orbit).' })),
 };
 
+const PhaseRange = Type.Object(
+  {
+    g_min: Type.Number({ description: 'Smallest g = nu_received/nu_emitted over the orbital phase (dimensionless): the receding side.' }),
+    g_max: Type.Number({ description: 'Largest g over the orbital phase (dimensionless): the approaching side.' }),
+    one_plus_z_min: Type.Number({ description: '1/g_max (dimensionless).' }),
+    one_plus_z_max: Type.Number({ description: '1/g_min (dimensionless).' }),
+    observed_min: Type.Optional(SpectralOutBare('Smallest observed spectral value over the orbit, in the unit of rest.')),
+    observed_max: Type.Optional(SpectralOutBare('Largest observed spectral value over the orbit, in the unit of rest.')),
+    inclination_deg: Type.Number({ description: 'Observer inclination used, deg.' }),
+    rays: Type.Integer({ description: 'Rays traced.' }),
+  },
+  {
+    description:
+      "Circular emitters seen at observer_inclination: the range of the shift over the orbital phase, from the orbit's direct image traced backward from the observer (Cunningham & Bardeen 1973; g of Cunningham 1975). Nominal inputs (uncertainties do not propagate into it).",
+  },
+);
+
 const RedshiftResult = Type.Object({
   one_plus_z: ScalarOut('1 + z = nu_emitted / nu_received at infinity = lambda_received / lambda_emitted.'),
   z: ScalarOut('Redshift z, computed directly (full relative precision also for z ~ 1e-10).'),
@@ -155,6 +189,7 @@ const RedshiftResult = Type.Object({
   velocity: QuantityOut('The shift as a velocity c z (the convention of white-dwarf gravitational redshifts; not a physical speed).', 'm.s-1'),
   observed: Type.Optional(SpectralOut('Spectral value received at infinity, in the unit of rest: wavelengths stretch by 1+z, frequencies and photon energies shrink by it.')),
   shift: Type.Optional(SpectralOut('observed - rest, in the unit of rest, computed without cancellation.')),
+  orbital_phase_range: Type.Optional(PhaseRange),
   ...PositionOut,
   ...Provenance,
 });
@@ -177,7 +212,63 @@ const REFS = {
   einstein: 'Einstein 1911, Ann. Phys. 35, 898',
   bpt: 'Bardeen, Press & Teukolsky 1972, ApJ 178, 347',
   brent: 'Brent 1973, Algorithms for Minimization without Derivatives (Prentice-Hall), ch. 4',
+  cunningham: 'Cunningham 1975, ApJ 202, 788 (redshift factor g of orbiting gas seen by a distant observer)',
+  cb73: 'Cunningham & Bardeen 1973, ApJ 183, 237 (image-plane constants of motion; ray tracing)',
 };
+
+interface PhaseRangeResult {
+  gMin: number;
+  gMax: number;
+  rays: number;
+}
+
+/**
+ * The orbital-phase range request of a forward case, or undefined without observer_inclination:
+ * checks the inclination and the orbit, and names the worker-side function that traces it
+ * (physics/lineprofile.ts ringRedshiftRange, with the signed spin of the orbit's sense).
+ */
+function phaseRangeRequest(input: RedshiftCase, em: EmitterInfo, b: BodyInfo, setup: ForwardSetup, vars: Variable[]) {
+  if (input.observer_inclination === undefined) return undefined;
+  if (em.motion !== 'circular') fail('/observer_inclination', 'applies to circular emitters only (a static emitter shows one shift at every inclination)');
+  const q = quantity(input.observer_inclination, '/observer_inclination', 'angle');
+  const maxRad = (OBSERVER_INCLINATION_MAX_DEG * Math.PI) / 180;
+  if (!(q.value >= 0 && q.value <= maxRad)) {
+    fail('/observer_inclination', `must lie in [0, ${OBSERVER_INCLINATION_MAX_DEG}] deg (0 = face-on; use 180 deg - i for an observer below the plane); got ${fmt((q.value * 180) / Math.PI)} deg`);
+  }
+  if (q.sigma > 0) fail('/observer_inclination/uncertainty', 'is not propagated into the orbital-phase range: trace the ends of the range as a batch instead');
+  let out: Outputs;
+  try {
+    out = forwardAt(setup, vars.map((v) => v.value));
+  } catch {
+    return undefined; // the case itself fails with its 422
+  }
+  const rRg = out.r / out.rg;
+  if (!(rRg <= PHASE_RANGE_R_MAX)) {
+    fail('/observer_inclination', `the orbital-phase range is traced for orbits within ${PHASE_RANGE_R_MAX} rg; this orbit is at ${fmt(rRg)} rg (there g = 1 -+ v sin i to first order, v = sqrt(GM/r))`);
+  }
+  return {
+    incDeg: (q.value * 180) / Math.PI,
+    offload: { module: 'lineprofile', name: 'ringRedshiftRange', args: [em.sign * b.spin.value, q.value, rRg], rays: PHASE_RANGE_RAYS },
+  };
+}
+
+function shapePhaseRange(r: PhaseRangeResult, incDeg: number, rest: SpectralInput | undefined): Record<string, unknown> {
+  const out: Record<string, unknown> = {
+    g_min: r.gMin,
+    g_max: r.gMax,
+    one_plus_z_min: 1 / r.gMax,
+    one_plus_z_max: 1 / r.gMin,
+  };
+  if (rest) {
+    // wavelengths stretch by 1/g, frequencies and energies scale by g
+    const ends = rest.kind === 'wavelength' ? [rest.value / r.gMax, rest.value / r.gMin] : [rest.value * r.gMin, rest.value * r.gMax];
+    out.observed_min = { value: ends[0], unit: rest.unit };
+    out.observed_max = { value: ends[1], unit: rest.unit };
+  }
+  out.inclination_deg = incDeg;
+  out.rays = r.rays;
+  return out;
+}
 
 type Motion = 'static' | 'circular';
 type Dir = 'prograde' | 'retrograde';
@@ -791,7 +882,8 @@ export async function redshiftRoutes(app: FastifyInstance, opts: { config: Confi
       '(1+z = u^t for photons of zero axial angular momentum, i.e. a face-on observer; includes the transverse Doppler shift), in the Schwarzschild or Kerr ' +
       'metric, or the Schwarzschild exterior of a preset body ("weak-field": point mass, no oblateness or rotation). Give the position as r or as a height ' +
       '(above the static limit for static emitters, above the horizon for orbits) to keep full precision next to the horizon. Optionally shifts a rest-frame ' +
-      'wavelength, frequency or photon energy. 422 inside the ergosphere (static) or at/inside the photon orbit (circular); orbits inside the ISCO carry a warning.',
+      'wavelength, frequency or photon energy. 422 inside the ergosphere (static) or at/inside the photon orbit (circular); orbits inside the ISCO carry a warning. ' +
+      'For a circular emitter, `observer_inclination` adds the range of g over the orbital phase seen by a distant observer at that inclination, traced through the Kerr metric on the worker threads (`orbital_phase_range`).',
     tags: ['redshift'],
     caseSchema: RedshiftCase,
     resultSchema: RedshiftResult,
@@ -799,11 +891,13 @@ export async function redshiftRoutes(app: FastifyInstance, opts: { config: Confi
       const { b, em, setup, vars, rest } = prepareForward(input, '');
       const model = modelOf(b);
       const linear = input.uncertainty_method?.kind !== 'monte-carlo';
+      const phase = phaseRangeRequest(input, em, b, setup, vars);
       return {
         vars,
         method: input.uncertainty_method,
         compute: (x) => guarded(setup.posPointer, () => forwardAt(setup, x)),
-        shape: (get, nominal) => {
+        ...(phase ? { offload: phase.offload } : {}),
+        shape: (get, nominal, offloaded) => {
           const z = get('z');
           const omg = get('one_minus_g');
           // 1+z and g are affine in z and 1-g: their spreads come from those (full precision for tiny z).
@@ -817,12 +911,19 @@ export async function redshiftRoutes(app: FastifyInstance, opts: { config: Confi
             out.observed = dimensional(observedMeasured(get, nominal, rest, linear), rest.unit);
             out.shift = dimensional(get('shift'), rest.unit);
           }
+          if (phase && offloaded) out.orbital_phase_range = shapePhaseRange(offloaded as PhaseRangeResult, phase.incDeg, rest);
           shapePosition(out, get, nominal, em, b.preset !== undefined);
           return finiteReply(out, vars, '', setup.posPointer);
         },
-        warnings: emitterWarnings(em, b, linear),
+        warnings: (nominal, get) => {
+          const w = emitterWarnings(em, b, linear)(nominal, get);
+          if (phase && vars.some((v) => v.sigma > 0)) {
+            w.push({ code: 'phase-range-nominal', message: 'orbital_phase_range is traced at the nominal inputs; the uncertainties apply to the other outputs' });
+          }
+          return w;
+        },
         model,
-        references: referencesOf(model, em.motion, false),
+        references: phase ? [...referencesOf(model, em.motion, false), REFS.cunningham, REFS.cb73] : referencesOf(model, em.motion, false),
       };
     },
   });

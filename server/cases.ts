@@ -9,6 +9,7 @@ import { propagateLinear, propagateMonteCarlo, type Measured, type Model, type O
 import type { Config } from './config.js';
 import { CaseOrBatch, ResultOrBatch, ProblemSchema, type UncertaintyMethodInput } from './schemas.js';
 import { InputError, physicsProblem, problem, type FieldError, type Problem } from './problems.js';
+import { RayServiceError, requestSignal, sendRayServiceError } from './rays.js';
 
 export interface Warning {
   code: string;
@@ -21,8 +22,17 @@ export interface Prepared {
   vars: Variable[];
   /** Flat numeric outputs as functions of the inputs (SI or dimensionless). */
   compute: Model;
-  /** Builds the case reply from measured outputs; `nominal` holds the outputs at the nominal inputs. */
-  shape: (get: (key: string) => Measured, nominal: Outputs) => Record<string, unknown>;
+  /**
+   * Builds the case reply from measured outputs; `nominal` holds the outputs at the nominal inputs,
+   * `offloaded` the result of `offload` when the case asked for one.
+   */
+  shape: (get: (key: string) => Measured, nominal: Outputs, offloaded?: unknown) => Record<string, unknown>;
+  /**
+   * A compute-heavy part (ray tracing) to run on the worker threads before the case is shaped: an
+   * exported function of a worker-side module (server/ray-worker.ts), its arguments, and the rays
+   * it may trace (counted against RAYS_MAX).
+   */
+  offload?: { module: string; name: string; args: unknown[]; rays: number };
   /** Flags that depend on the result: nominal outputs, and measured ones (with uncertainties). */
   warnings?: (nominal: Outputs, get: (key: string) => Measured) => Warning[];
   method?: UncertaintyMethodInput;
@@ -93,7 +103,7 @@ const NULL_VALUE = /[:[,]null[,\]}]/;
  * Serializing here (once per case) lets a batch reply be joined from its items' text, and lets the
  * non-finite check scan text instead of walking every reply object.
  */
-export function runCase(p: Prepared, pointer: string): string | Problem {
+export function runCase(p: Prepared, pointer: string, offloaded?: unknown): string | Problem {
   try {
     const vars = p.vars;
     let uncertain = false;
@@ -119,7 +129,7 @@ export function runCase(p: Prepared, pointer: string): string | Problem {
       get = (k) => res.values[k];
       notes = res.notes;
     }
-    const reply = p.shape(get, nominal);
+    const reply = p.shape(get, nominal, offloaded);
     reply.model = p.model;
     reply.references = p.references;
     const flags = p.warnings?.(nominal, get);
@@ -197,7 +207,28 @@ export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route
       if (total > config.COMPUTE_BUDGET) {
         throw new InputError([], 413, `this request needs about ${total} model evaluations; the limit is ${config.COMPUTE_BUDGET} (COMPUTE_BUDGET): split the batch or use fewer Monte Carlo samples`);
       }
-      const results = slots.map((slot) => (isProblem(slot) ? slot : runCase(slot.p, slot.pointer)));
+      // Compute-heavy parts run on the worker threads first (never on the event loop).
+      const offloaded = new Map<number, unknown>();
+      const heavy = slots.map((slot, i) => [slot, i] as const).filter(([slot]) => !isProblem(slot) && slot.p.offload);
+      if (heavy.length > 0) {
+        const rays = heavy.reduce((n, [slot]) => n + (slot as { p: Prepared }).p.offload!.rays, 0);
+        if (rays > config.RAYS_MAX) {
+          throw new InputError([], 413, `this request may trace up to ${rays} rays; the limit is ${config.RAYS_MAX} (RAYS_MAX): split the batch`);
+        }
+        const signal = requestSignal(reply, config);
+        try {
+          await Promise.all(
+            heavy.map(async ([slot, i]) => {
+              const o = (slot as { p: Prepared }).p.offload!;
+              offloaded.set(i, await app.lapse.rays.call(o.module, o.name, o.args, signal));
+            }),
+          );
+        } catch (err) {
+          if (err instanceof RayServiceError) return sendRayServiceError(reply, request, err);
+          throw err;
+        }
+      }
+      const results = slots.map((slot, i) => (isProblem(slot) ? slot : runCase(slot.p, slot.pointer, offloaded.get(i))));
       if (!batch) {
         const only = results[0];
         if (typeof only !== 'string') {

@@ -19,6 +19,7 @@ import {
   type Transfer,
 } from '../physics/lineprofile.js';
 import { RayBudgetError } from '../physics/lineprofile.js';
+import * as lineprofile from '../physics/lineprofile.js';
 
 /** Serializable emissivity law (rg for radii). */
 export type EmissivitySpec =
@@ -69,10 +70,9 @@ export function runBinJob(t: SharedTransfer, job: BinJob): BinResult {
   return { flux: Array.from(fine.flux), total: fine.total, l1Coarse: l1Distance(fine.flux, coarse.flux) };
 }
 
-/** Modules whose exported functions a 'call' task may run (pure physics and case runners). */
-const CALLABLE: Record<string, () => Promise<Record<string, unknown>>> = {
-  lineprofile: () => import('../physics/lineprofile.js'),
-  cases: () => import('./offload.js'),
+/** Modules whose exported functions a 'call' task may run (pure physics). */
+const CALLABLE: Record<string, Record<string, unknown>> = {
+  lineprofile,
 };
 
 export default async function run(task: RayTask): Promise<unknown> {
@@ -87,9 +87,9 @@ export default async function run(task: RayTask): Promise<unknown> {
     case 'bin':
       return task.jobs.map((job) => runBinJob(task.transfer, job));
     case 'call': {
-      const load = CALLABLE[task.module];
-      if (!load) throw new Error(`unknown module ${task.module}`);
-      const fn = (await load())[task.name];
+      const mod = CALLABLE[task.module];
+      if (!mod) throw new Error(`unknown module ${task.module}`);
+      const fn = mod[task.name];
       if (typeof fn !== 'function') throw new Error(`unknown function ${task.module}.${task.name}`);
       return (fn as (...a: unknown[]) => unknown)(...task.args);
     }

@@ -9,7 +9,9 @@ import { fileURLToPath } from 'node:url';
 import { Piscina } from 'piscina';
 import { LRUCache } from 'lru-cache';
 import { ACCURACY, mergeTransfers, type DiskGeometry, type Transfer } from '../physics/lineprofile.js';
+import type { FastifyReply, FastifyRequest } from 'fastify';
 import type { Config } from './config.js';
+import { problem } from './problems.js';
 import type { BinJob, BinResult, RayTask, SharedTransfer, TraceReply } from './ray-worker.js';
 
 /** A task that could not run: the queue is full, the time is up, or the client went away. */
@@ -223,4 +225,34 @@ export class RayService {
     if (this.pool) await this.pool.destroy();
     this.pool = undefined;
   }
+}
+
+/**
+ * The abort signal of a request's pool tasks: the client closing the connection before the reply,
+ * or RAY_TIMEOUT_MS passing.
+ */
+export function requestSignal(reply: FastifyReply, config: Config): AbortSignal {
+  const gone = new AbortController();
+  reply.raw.on('close', () => {
+    if (!reply.raw.writableFinished) gone.abort(new Error('client closed the connection'));
+  });
+  return AbortSignal.any([gone.signal, AbortSignal.timeout(config.RAY_TIMEOUT_MS)]);
+}
+
+/** The 503 problem reply for a pool task that could not run (queue full, time up, cancelled). */
+export function sendRayServiceError(reply: FastifyReply, request: FastifyRequest, err: RayServiceError) {
+  let p;
+  if (err.reason === 'aborted') {
+    request.log.info('request cancelled by the client');
+    p = problem(503, 'the request was cancelled', undefined, 'cancelled');
+  } else if (err.reason === 'timeout') {
+    p = problem(503, `${err.message}: use a lower accuracy, fewer geometries per request, or retry when the service is less busy`, undefined, 'compute-timeout');
+  } else {
+    p = problem(503, err.message, undefined, 'overloaded');
+  }
+  return reply
+    .code(503)
+    .header('retry-after', '1')
+    .type('application/problem+json')
+    .send({ ...p, instance: request.url.split('?')[0], request_id: request.id });
 }

@@ -56,6 +56,9 @@ const CONFIG: Config = makeConfig({
   BODY_LIMIT,
   MC_SAMPLES_MAX,
   COMPUTE_BUDGET,
+  // One new "fast" or "standard" line-profile geometry per request at most (fine: 413): fuzzing is
+  // not a ray-tracing benchmark.
+  RAYS_MAX: 130_000,
 });
 
 const BASE_SEED = Number(process.env.LAPSE_FUZZ_SEED ?? 0x1a95e);
