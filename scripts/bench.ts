@@ -36,6 +36,9 @@
  *                                                one; default: those marked default)
  *   --out FILE            BENCH_OUT              JSON results (default <repo>/bench-results.json)
  *   --no-pin              BENCH_NO_PIN=1         do not pin to cores
+ *   --no-line-profile     BENCH_NO_LINE_PROFILE=1  skip the line-profile measurements (a fresh
+ *                                                unpinned server after the scenarios; see
+ *                                                scripts/bench-line-profile.ts)
  *   --strict              BENCH_STRICT=1         also exit 2 when a ratio is below its target
  *   --compiled            BENCH_COMPILED=1       serve a tsc build (compiled first, ~15-30 s, into
  *                                                node_modules/.cache/lapse-bench/build) instead of
@@ -56,6 +59,7 @@ import { fileURLToPath } from 'node:url';
 import { createInterface } from 'node:readline';
 import { parseArgs } from 'node:util';
 import type { EventEmitter } from 'node:events';
+import { benchLineProfile, type LineProfileBench } from './bench-line-profile.js';
 
 // ---------------------------------------------------------------------------------------------
 // autocannon 9 ships no type declarations (and adding @types/autocannon is not allowed here): the
@@ -331,6 +335,7 @@ interface Options {
   pin: boolean;
   strict: boolean;
   compiled: boolean;
+  lineProfile: boolean;
 }
 
 const HERE = dirname(fileURLToPath(import.meta.url));
@@ -366,6 +371,7 @@ function readOptions(): Options {
       scenarios: { type: 'string' },
       out: { type: 'string' },
       'no-pin': { type: 'boolean', default: false },
+      'no-line-profile': { type: 'boolean', default: false },
       strict: { type: 'boolean', default: false },
       compiled: { type: 'boolean', default: false },
       list: { type: 'boolean', default: false },
@@ -409,6 +415,7 @@ function readOptions(): Options {
     pin: !(values['no-pin'] || truthy(process.env.BENCH_NO_PIN)),
     strict: values.strict || truthy(process.env.BENCH_STRICT),
     compiled: values.compiled || truthy(process.env.BENCH_COMPILED),
+    lineProfile: !(values['no-line-profile'] || truthy(process.env.BENCH_NO_LINE_PROFILE)),
   };
 }
 
@@ -492,10 +499,11 @@ function compileApp(): string {
   return outDir;
 }
 
-async function startServer(pin: boolean, appDir: string | undefined): Promise<{ url: string; pid: number; app: string }> {
+async function startServer(cpus: string | undefined, appDir: string | undefined): Promise<{ url: string; pid: number; app: string }> {
   const script = join(HERE, `bench-server${extname(fileURLToPath(import.meta.url))}`);
   const nodeArgs = [...process.execArgv, script, '--port', '0', '--exit-on-stdin-close'];
-  const [cmd, args] = pin ? ['taskset', ['-c', '1', process.execPath, ...nodeArgs]] : [process.execPath, nodeArgs];
+  const [cmd, args] = cpus ? ['taskset', ['-c', cpus, process.execPath, ...nodeArgs]] : [process.execPath, nodeArgs];
+  stoppingServer = false;
   const child = spawn(cmd, args, {
     stdio: ['pipe', 'pipe', 'inherit'],
     env: { ...process.env, BENCH_LOG_LEVEL: process.env.BENCH_LOG_LEVEL ?? 'warn', BENCH_APP_DIR: appDir ?? '' },
@@ -690,7 +698,7 @@ async function main(): Promise<void> {
   // Seconds: server start-up, then per scenario its warm-up and its rounds (+0.3 s set-up a run).
   const estimate = 5 + opts.scenarios.reduce((t, s) => t + (opts.warmupSec > 0 ? opts.warmupSec + 0.3 : 0) + opts.rounds * (runSeconds(opts, s) + 0.3), 0);
   // Every run is bounded by autocannon's duration; this bounds the whole bench as well.
-  const limitSec = Math.round(estimate * 2 + 60 + (opts.compiled ? 300 : 0));
+  const limitSec = Math.round(estimate * 2 + 60 + (opts.compiled ? 300 : 0) + (opts.lineProfile ? 120 : 0));
   const watchdog = setTimeout(() => {
     process.stderr.write(`bench: FAIL: still running after ${limitSec} s; giving up\n`);
     current?.stop();
@@ -709,7 +717,7 @@ async function main(): Promise<void> {
   process.on('exit', killServerNow);
 
   const appDir = opts.compiled ? compileApp() : undefined;
-  const { url: base, pid: serverPid, app: serverApp } = await startServer(pinned, appDir);
+  const { url: base, pid: serverPid, app: serverApp } = await startServer(pinned ? '1' : undefined, appDir);
   const affinity = { loadGenerator: affinityOf('self'), server: affinityOf(serverPid) };
   const log = (s: string) => process.stdout.write(`${s}\n`);
   log(`Lapse bench: server ${base} (pid ${serverPid}, cpus ${affinity.server}, app from ${serverApp === 'sources' ? 'sources under tsx' : serverApp}); load generator pid ${process.pid}, cpus ${affinity.loadGenerator}${pinNote ? ` [${pinNote}]` : ''}`);
@@ -757,6 +765,18 @@ async function main(): Promise<void> {
     log(`  round ${round}/${opts.rounds}: ${parts.join(', ')}`);
   }
   await stopServer();
+
+  // Line profiles: a fresh server (empty transfer cache) whose worker threads may use every core;
+  // requests are sequential, so the load generator hardly competes.
+  let lineProfile: LineProfileBench | undefined;
+  if (opts.lineProfile) {
+    const lp = await startServer(pinned ? '0,1' : undefined, appDir);
+    log(`line profiles: fresh server ${lp.url} (pid ${lp.pid}, cpus ${affinityOf(lp.pid)})`);
+    lineProfile = await benchLineProfile(lp.url, cpus().length, log);
+    await stopServer();
+    for (const f of lineProfile.failures) process.stderr.write(`bench: FAIL: line-profile: ${f}\n`);
+    failures.push(...lineProfile.failures.map((f) => `line-profile: ${f}`));
+  }
 
   // Summaries.
   const summary = opts.scenarios.map((sc) => {
@@ -812,7 +832,31 @@ async function main(): Promise<void> {
     );
   }
 
+  if (lineProfile) {
+    const l = lineProfile;
+    log('');
+    log(`Line profile (issue 6 case: a* = 0.998, i = 30 deg, r_in = ISCO, r_out = 400 rg, q = 3, 300 log bins 1-9 keV, "standard"; ${l.threads} worker threads)`);
+    log(
+      table(
+        ['measure', 'value', 'target'],
+        [
+          ['cold, pool starting (ms)', fmt(l.coldFirstMs), ''],
+          ['cold, median of 3 new geometries (ms)', fmt(l.coldMedianMs), '<= 2000'],
+          ['rays per geometry', fmt(l.rays), ''],
+          ['rays/s per core', fmt(l.raysPerSecPerCore), ''],
+          ['warm, new emissivity: median / p90 (ms)', `${fmt(l.warmMedianMs, 1)} / ${fmt(l.warmP90Ms, 1)}`, '<= 20'],
+          ['batch of 100 emissivities, median (ms)', fmt(l.batch100MedianMs), '<= 1000'],
+          ['L1(standard, fine) / reply estimate', `${l.l1ToFine.toFixed(4)} / ${l.l1Estimate.toFixed(4)}`, '<= 0.01'],
+          ['fine, cold (ms)', fmt(l.fineColdMs), ''],
+          [`during fine traces: /healthz median / max (ms, n=${l.responsiveness.requests})`, `${fmt(l.responsiveness.healthzMedianMs, 1)} / ${fmt(l.responsiveness.healthzMaxMs, 1)}`, '<= 50'],
+          ['during fine traces: /v1/radii median / max (ms)', `${fmt(l.responsiveness.radiiMedianMs, 1)} / ${fmt(l.responsiveness.radiiMaxMs, 1)}`, '<= 50'],
+        ],
+      ),
+    );
+  }
+
   const results = {
+    lineProfile,
     generatedAt: new Date().toISOString(),
     node: process.version,
     cpus: cpus().length,
