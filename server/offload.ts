@@ -1,2 +1,0 @@
-/** Cases run on the worker threads (see ray-worker.ts). */
-export {};
