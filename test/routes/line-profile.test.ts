@@ -204,6 +204,16 @@ describe('the transfer cache and batches', () => {
     expect(again.body.rays).toBe(res.body.items[0].rays);
   });
 
+  it('/metrics reports the traces, cache hits and cached geometries', async () => {
+    const res = await app.inject({ method: 'GET', url: '/metrics' });
+    const value = (name: string) => Number(new RegExp(`^${name} (\\S+)$`, 'm').exec(res.body)?.[1]);
+    expect(value('lapse_ray_traces_total')).toBe(app.lapse.rays.stats.traces);
+    expect(value('lapse_ray_traces_total')).toBeGreaterThan(0);
+    expect(value('lapse_ray_cache_hits_total')).toBe(app.lapse.rays.stats.cacheHits);
+    expect(value('lapse_ray_cache_entries')).toBe(app.lapse.rays.cacheEntries);
+    expect(value('lapse_ray_cache_entries')).toBeGreaterThan(0);
+  });
+
   it('a broken power law with equal indices is the plain power law', async () => {
     const plain = await post({ ...TAMSIN, emissivity: 2.7 });
     const broken = await post({ ...TAMSIN, emissivity: { kind: 'broken-power-law', index_inner: 2.7, index_outer: 2.7, break_radius: 10 } });
