@@ -88,6 +88,9 @@ export class RayBudgetError extends Error {
   }
 }
 
+/** Extra quadtree levels allowed only where a disk feature thinner than a cell hides between corners. */
+const THIN_LEVELS = 3;
+
 /** Smallest image radius of the grid, rg: the disk inside it is below 1e-8 of any image's area. */
 const RHO_MIN = 0.02;
 
@@ -106,7 +109,9 @@ export function traceTransfer(geom: DiskGeometry, opts: { part?: { index: number
   const tracer = new KerrRayTracer({ a: geom.a, inclination: geom.inclination, rIn: geom.rIn, rOut: geom.rOut, rtol: set.rtol, measureDrift: opts.measureDrift });
   const rhoMin = RHO_MIN;
   const rhoMax = imageRadiusMax(geom.rOut);
-  const S = 1 << set.depth; // finest subdivisions per base cell
+  // Finest subdivisions per base cell: `depth` levels everywhere, THIN_LEVELS more where a disk
+  // feature narrower than a cell (a thin ring) crosses a cell none of whose corners sees it.
+  const S = 1 << (set.depth + THIN_LEVELS);
   const nR = set.nRadial;
   const nA = set.nAngular;
   const KS = nA * S; // angular nodes at the finest resolution (periodic)
@@ -122,6 +127,8 @@ export function traceTransfer(geom: DiskGeometry, opts: { part?: { index: number
   let nodeG = new Float64Array(cap);
   let nodeMu = new Float64Array(cap);
   let nodeOrder = new Int32Array(cap);
+  // radius of the first plane crossing; 0 for a ray captured first, Infinity for one leaving first
+  let nodeFirst = new Float64Array(cap);
   let nodes = 0;
   let rays = 0;
 
@@ -148,8 +155,10 @@ export function traceTransfer(geom: DiskGeometry, opts: { part?: { index: number
       nodeG = grow(nodeG, (n) => new Float64Array(n));
       nodeMu = grow(nodeMu, (n) => new Float64Array(n));
       nodeOrder = grow(nodeOrder, (n) => new Int32Array(n));
+      nodeFirst = grow(nodeFirst, (n) => new Float64Array(n));
     }
     const id = nodes++;
+    nodeFirst[id] = res.rFirst > 0 ? res.rFirst : res.fate === RayFate.Escaped ? Infinity : 0;
     if (res.fate === RayFate.Disk) {
       const g = diskRedshift(res.r, geom.a, res.lambda);
       nodeR[id] = res.r;
@@ -172,7 +181,7 @@ export function traceTransfer(geom: DiskGeometry, opts: { part?: { index: number
     gHi: number[];
     corners: number[];
   }
-  const cell = (out: CellList, J0: number, K0: number, size: number, levelsLeft: number) => {
+  const cell = (out: CellList, J0: number, K0: number, size: number, levelsLeft: number, thin = false): void => {
     const c = [node(J0, K0), node(J0 + size, K0), node(J0, K0 + size), node(J0 + size, K0 + size)];
     let hits = 0;
     let gLo = Infinity;
@@ -187,22 +196,67 @@ export function traceTransfer(geom: DiskGeometry, opts: { part?: { index: number
         if (nodeG[id] > gHi) gHi = nodeG[id];
       }
     }
-    if (hits === 0) return; // nothing of the disk seen at the corners (cells are small against the disk)
-    if (levelsLeft > 0 && (hits < 4 || mixedOrder || gHi - gLo > set.gSpread)) {
+    const split = (deeper: boolean) => {
       const h = size / 2;
-      cell(out, J0, K0, h, levelsLeft - 1);
-      cell(out, J0 + h, K0, h, levelsLeft - 1);
-      cell(out, J0, K0 + h, h, levelsLeft - 1);
-      cell(out, J0 + h, K0 + h, h, levelsLeft - 1);
+      cell(out, J0, K0, h, levelsLeft - 1, deeper);
+      cell(out, J0 + h, K0, h, levelsLeft - 1, deeper);
+      cell(out, J0, K0 + h, h, levelsLeft - 1, deeper);
+      cell(out, J0 + h, K0 + h, h, levelsLeft - 1, deeper);
+    };
+    if (hits === 0) {
+      // No corner sees the disk; but if the corners' first crossings straddle [rIn, rOut], the
+      // direct image of a disk thinner than the cell passes through it: look closer.
+      let lo = Infinity;
+      let hi = -Infinity;
+      for (const id of c) {
+        if (nodeFirst[id] < lo) lo = nodeFirst[id];
+        if (nodeFirst[id] > hi) hi = nodeFirst[id];
+      }
+      if (lo <= geom.rOut && hi >= geom.rIn && levelsLeft > -THIN_LEVELS) split(levelsLeft <= 0 || thin);
+      return;
+    }
+    if ((levelsLeft > 0 || (thin && levelsLeft > -THIN_LEVELS)) && (hits < 4 || mixedOrder || gHi - gLo > set.gSpread)) {
+      split(thin);
       return;
     }
     const rho0 = Math.exp(lnMin + J0 * dLn);
     const rho1 = Math.exp(lnMin + (J0 + size) * dLn);
-    out.area.push(0.5 * (rho1 * rho1 - rho0 * rho0) * size * dPhi); // polar cell area, rg^2
+    let area = 0.5 * (rho1 * rho1 - rho0 * rho0) * size * dPhi; // polar cell area, rg^2
+    if (hits < 4) area *= coveredShare(c) / (hits / 4);
+    out.area.push(area);
     out.gLo.push(gLo);
     out.gHi.push(gHi);
     out.corners.push(c[0], c[1], c[2], c[3]);
   };
+  /**
+   * Share of a cell on the disk's edge that the disk's direct image covers: the first-crossing
+   * radius interpolated bilinearly between the corners, sampled on an 8 x 8 grid, inside
+   * [rIn, rOut]. binProfile weighs a cell by the mean over its corners with misses as zero
+   * (share hits/4); the area is scaled to make the share this one. Falls back to hits/4 where a
+   * corner was captured, left without crossing, or sees a higher-order image.
+   */
+  const coveredShare = (c: readonly number[]): number => {
+    let hits = 0;
+    for (const id of c) {
+      const f = nodeFirst[id];
+      if (!(f > 0 && f < Infinity) || nodeOrder[id] > 1) return countHits(c) / 4;
+      if (nodeR[id] > 0) hits++;
+    }
+    const [f00, f10, f01, f11] = c.map((id) => nodeFirst[id]); // corners (J0,K0), (J0+s,K0), (J0,K0+s), (J0+s,K0+s)
+    let inside = 0;
+    const n = 8;
+    for (let i = 0; i < n; i++) {
+      const x = (i + 0.5) / n;
+      for (let j = 0; j < n; j++) {
+        const y = (j + 0.5) / n;
+        const f = (1 - x) * (1 - y) * f00 + x * (1 - y) * f10 + (1 - x) * y * f01 + x * y * f11;
+        if (f >= geom.rIn && f <= geom.rOut) inside++;
+      }
+    }
+    // never zero for a cell with a hit corner: at least the corner's own neighbourhood
+    return Math.max(inside / (n * n), hits / (4 * n * n));
+  };
+  const countHits = (c: readonly number[]) => c.reduce((k, id) => k + (nodeR[id] > 0 ? 1 : 0), 0);
   const list = (): CellList => ({ area: [], gLo: [], gHi: [], corners: [] });
   const pack = (l: CellList): Cells => ({ area: Float64Array.from(l.area), gLo: Float64Array.from(l.gLo), gHi: Float64Array.from(l.gHi), corners: Int32Array.from(l.corners) });
 
