@@ -681,14 +681,7 @@ function slot(edges: ArrayLike<number>, x: number): number {
 function findBin(edges: ArrayLike<number>, x: number): number {
   const nb = edges.length - 1;
   if (!(x >= edges[0] && x <= edges[nb])) return -1;
-  let lo = 0;
-  let hi = nb;
-  while (hi - lo > 1) {
-    const mid = (lo + hi) >> 1;
-    if (edges[mid] <= x) lo = mid;
-    else hi = mid;
-  }
-  return lo;
+  return Math.min(slot(edges, x), nb) - 1;
 }
 
 /** Power-law emissivity r^-index. */

@@ -168,33 +168,14 @@ export class KerrRayTracer {
       }
       steps++;
       // --- one Dormand-Prince step of size h from (u, v, m, w) ---
-      const k1u = v, k1v = fu, k1m = w, k1w = fm;
-      let tu = u + h * A21 * k1u, tv = v + h * A21 * k1v, tm = m + h * A21 * k1m, tw = w + h * A21 * k1w;
-      const k2u = tv, k2v = tu * (c1 + tu * (c2 + tu * c3)), k2m = tw, k2w = tm * (d1 + d3 * tm * tm);
-      tu = u + h * (A31 * k1u + A32 * k2u); tv = v + h * (A31 * k1v + A32 * k2v);
-      tm = m + h * (A31 * k1m + A32 * k2m); tw = w + h * (A31 * k1w + A32 * k2w);
-      const k3u = tv, k3v = tu * (c1 + tu * (c2 + tu * c3)), k3m = tw, k3w = tm * (d1 + d3 * tm * tm);
-      tu = u + h * (A41 * k1u + A42 * k2u + A43 * k3u); tv = v + h * (A41 * k1v + A42 * k2v + A43 * k3v);
-      tm = m + h * (A41 * k1m + A42 * k2m + A43 * k3m); tw = w + h * (A41 * k1w + A42 * k2w + A43 * k3w);
-      const k4u = tv, k4v = tu * (c1 + tu * (c2 + tu * c3)), k4m = tw, k4w = tm * (d1 + d3 * tm * tm);
-      tu = u + h * (A51 * k1u + A52 * k2u + A53 * k3u + A54 * k4u); tv = v + h * (A51 * k1v + A52 * k2v + A53 * k3v + A54 * k4v);
-      tm = m + h * (A51 * k1m + A52 * k2m + A53 * k3m + A54 * k4m); tw = w + h * (A51 * k1w + A52 * k2w + A53 * k3w + A54 * k4w);
-      const k5u = tv, k5v = tu * (c1 + tu * (c2 + tu * c3)), k5m = tw, k5w = tm * (d1 + d3 * tm * tm);
-      tu = u + h * (A61 * k1u + A62 * k2u + A63 * k3u + A64 * k4u + A65 * k5u);
-      tv = v + h * (A61 * k1v + A62 * k2v + A63 * k3v + A64 * k4v + A65 * k5v);
-      tm = m + h * (A61 * k1m + A62 * k2m + A63 * k3m + A64 * k4m + A65 * k5m);
-      tw = w + h * (A61 * k1w + A62 * k2w + A63 * k3w + A64 * k4w + A65 * k5w);
-      const k6u = tv, k6v = tu * (c1 + tu * (c2 + tu * c3)), k6m = tw, k6w = tm * (d1 + d3 * tm * tm);
-      const nu = u + h * (B1 * k1u + B3 * k3u + B4 * k4u + B5 * k5u + B6 * k6u);
-      const nv = v + h * (B1 * k1v + B3 * k3v + B4 * k4v + B5 * k5v + B6 * k6v);
-      const nm = m + h * (B1 * k1m + B3 * k3m + B4 * k4m + B5 * k5m + B6 * k6m);
-      const nw = w + h * (B1 * k1w + B3 * k3w + B4 * k4w + B5 * k5w + B6 * k6w);
-      const k7u = nv, k7v = nu * (c1 + nu * (c2 + nu * c3)), k7m = nw, k7w = nm * (d1 + d3 * nm * nm);
-      // embedded error estimate, scaled RMS norm
-      const eu = h * (E1 * k1u + E3 * k3u + E4 * k4u + E5 * k5u + E6 * k6u + E7 * k7u);
-      const ev = h * (E1 * k1v + E3 * k3v + E4 * k4v + E5 * k5v + E6 * k6v + E7 * k7v);
-      const em = h * (E1 * k1m + E3 * k3m + E4 * k4m + E5 * k5m + E6 * k6m + E7 * k7m);
-      const ew = h * (E1 * k1w + E3 * k3w + E4 * k4w + E5 * k5w + E6 * k6w + E7 * k7w);
+      this.rkStep(u, v, m, w, fu, fm, h, c1, c2, c3, d1, d3);
+      const nu = this.cu, nv = this.cv, nm = this.cm, nw = this.cw;
+      const k7v = nu * (c1 + nu * (c2 + nu * c3)), k7w = nm * (d1 + d3 * nm * nm);
+      // embedded error estimate (stages 1-6 from rkStep, plus the FSAL stage 7), scaled RMS norm
+      const eu = this.eu + h * E7 * nv;
+      const ev = this.ev + h * E7 * k7v;
+      const em = this.em + h * E7 * nw;
+      const ew = this.ew + h * E7 * k7w;
       const su = eu / (atol + rtol * Math.max(Math.abs(u), Math.abs(nu)));
       const sv = ev / (atol + rtol * Math.max(Math.abs(v), Math.abs(nv)));
       const sm = em / (atol + rtol * Math.max(Math.abs(m), Math.abs(nm)));
@@ -288,7 +269,13 @@ export class KerrRayTracer {
     return s;
   }
 
-  /** One Dormand-Prince step (5th-order solution) of size s; result in cu, cv, cm, cw. */
+  // Stages 1-6 of the embedded error estimate of the last rkStep (the FSAL stage 7 is added by the caller).
+  private eu = 0;
+  private ev = 0;
+  private em = 0;
+  private ew = 0;
+
+  /** One Dormand-Prince step (5th-order solution) of size s; result in cu, cv, cm, cw; error stages in eu..ew. */
   private rkStep(u: number, v: number, m: number, w: number, fu: number, fm: number, s: number,
     c1: number, c2: number, c3: number, d1: number, d3: number): void {
     const k1u = v, k1v = fu, k1m = w, k1w = fm;
@@ -312,6 +299,10 @@ export class KerrRayTracer {
     this.cv = v + s * (B1 * k1v + B3 * k3v + B4 * k4v + B5 * k5v + B6 * k6v);
     this.cm = m + s * (B1 * k1m + B3 * k3m + B4 * k4m + B5 * k5m + B6 * k6m);
     this.cw = w + s * (B1 * k1w + B3 * k3w + B4 * k4w + B5 * k5w + B6 * k6w);
+    this.eu = s * (E1 * k1u + E3 * k3u + E4 * k4u + E5 * k5u + E6 * k6u);
+    this.ev = s * (E1 * k1v + E3 * k3v + E4 * k4v + E5 * k5v + E6 * k6v);
+    this.em = s * (E1 * k1m + E3 * k3m + E4 * k4m + E5 * k5m + E6 * k6m);
+    this.ew = s * (E1 * k1w + E3 * k3w + E4 * k4w + E5 * k5w + E6 * k6w);
   }
 
   private recordDrift(u: number, v: number, m: number, w: number, c1: number, c2: number, c3: number, d1: number, d3: number, q: number, lam: number): void {
