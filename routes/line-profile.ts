@@ -412,7 +412,7 @@ export async function lineProfileRoutes(app: FastifyInstance, opts: { config: Co
           'or the redshift g change; each image cell carries g^3 eps(r) I(mu_e) (photon flux; g^4 for energy flux; Cunningham 1975), spread over the g range of its corners. ' +
           'The reply has the bin edges, the flux per bin (summing to 1 over the bins), the share of the line inside the bins, g_min and g_max, the rays traced and an error estimate. ' +
           'Transfer data are cached per (spin, inclination, r_in, r_out, accuracy): new emissivities, rest values or bins for a cached geometry cost milliseconds. ' +
-          `Ray tracing runs on worker threads; a request may trace at most RAYS_MAX rays (413) and must finish within RAY_TIMEOUT_MS (503). ` +
+          `Ray tracing runs on worker threads; a request may trace at most RAYS_MAX rays (413), bin at most COMPUTE_BUDGET rays and cells (413; about ${Math.floor(20000000 / ACCURACY.standard.maxRays)} "standard" profiles at the default) and must finish within RAY_TIMEOUT_MS (503). ` +
           'With `Accept: image/svg+xml` a single case is answered with an SVG plot of the profile.',
         tags: ['line-profile'],
         produces: ['application/json', 'image/svg+xml'],
@@ -450,6 +450,16 @@ export async function lineProfileRoutes(app: FastifyInstance, opts: { config: Co
         grp.members.push(i);
         groups.set(key, grp);
       });
+      // Binning reads every ray and cell of its geometry once per case: count it against COMPUTE_BUDGET.
+      let binning = 0;
+      for (const grp of groups.values()) binning += grp.members.length * ACCURACY[grp.geometry.accuracy].maxRays;
+      if (binning > config.COMPUTE_BUDGET) {
+        throw new InputError(
+          [],
+          413,
+          `binning these profiles reads about ${binning} rays and cells; the limit is ${config.COMPUTE_BUDGET} (COMPUTE_BUDGET): split the batch (about ${Math.floor(config.COMPUTE_BUDGET / ACCURACY.standard.maxRays)} "standard" profiles fit in one request)`,
+        );
+      }
       let needed = 0;
       for (const grp of groups.values()) if (!rays.has(grp.geometry)) needed += ACCURACY[grp.geometry.accuracy].maxRays;
       if (needed > config.RAYS_MAX) {

@@ -272,6 +272,18 @@ describe('errors', () => {
     }
   });
 
+  it('413 when binning the batch would read more than COMPUTE_BUDGET rays and cells', async () => {
+    const small = await makeApp({ COMPUTE_BUDGET: 100_000 });
+    try {
+      const res = await post({ items: [TAMSIN, { ...TAMSIN, emissivity: 2 }, { ...TAMSIN, emissivity: 4 }, { ...TAMSIN, emissivity: 5 }] }, {}, small);
+      expect(res.status).toBe(413);
+      expect(res.body.detail).toMatch(/COMPUTE_BUDGET/);
+      expect((await post({ items: [TAMSIN, { ...TAMSIN, emissivity: 2 }] }, {}, small)).status).toBe(200); // 2 x 30 000 fits
+    } finally {
+      await small.close();
+    }
+  });
+
   it('503 with Retry-After when the tracing exceeds RAY_TIMEOUT_MS, and the pool keeps serving', async () => {
     const slow = await makeApp({ RAY_TIMEOUT_MS: 150 });
     try {
