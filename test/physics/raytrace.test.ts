@@ -15,46 +15,12 @@
 import { describe, expect, it } from 'vitest';
 import { KerrRayTracer, RayFate, diskRedshift, emissionCosine } from '../../physics/raytrace.js';
 import { isco } from '../../physics/kerr.js';
-import { gaussLegendre } from '../../physics/quadrature.js';
 import { brent } from '../../physics/roots.js';
+import { constantsOfMotion, gl, gradedCuts, planeCrossing, TIGHT, uniformCuts } from '../support/geodesic-quadrature.js';
 import { reference } from '../support/reference.js';
 
 const DEG = Math.PI / 180;
 const SQRT27 = Math.sqrt(27);
-
-// ---------------------------------------------------------------------------
-// Quadrature helpers (composite Gauss-Legendre on given panel boundaries)
-
-const GL = gaussLegendre(20);
-
-function gl(f: (x: number) => number, cuts: number[]): number {
-  let sum = 0;
-  for (let p = 0; p + 1 < cuts.length; p++) {
-    const c = (cuts[p] + cuts[p + 1]) / 2;
-    const h = (cuts[p + 1] - cuts[p]) / 2;
-    let s = 0;
-    for (let k = 0; k < GL.x.length; k++) s += GL.w[k] * f(c + h * GL.x[k]);
-    sum += h * s;
-  }
-  return sum;
-}
-
-/** n * scale equal panels on [lo, hi]. */
-function uniformCuts(lo: number, hi: number, n: number, scale: number): number[] {
-  const m = n * scale;
-  return Array.from({ length: m + 1 }, (_, k) => lo + ((hi - lo) * k) / m);
-}
-
-/** Panels graded geometrically toward lo (lo, lo + d 2^-m, ..., lo + d/2, lo + d), each split into `scale` parts. */
-function gradedCuts(lo: number, hi: number, m: number, scale: number): number[] {
-  const base = [lo];
-  for (let k = m; k >= 0; k--) base.push(lo + (hi - lo) * Math.pow(2, -k));
-  const cuts = [lo];
-  for (let p = 0; p + 1 < base.length; p++) for (let j = 1; j <= scale; j++) cuts.push(base[p] + ((base[p + 1] - base[p]) * j) / scale);
-  return cuts;
-}
-
-const TIGHT = { xRelTol: 1e-15 };
 
 // ---------------------------------------------------------------------------
 // Schwarzschild photon orbits (independent of physics/raytrace.ts)
@@ -122,64 +88,17 @@ const SCH = schwarzschildOrbits(1);
 const SCH2 = schwarzschildOrbits(2); // twice the panels: convergence of the reference itself
 
 // ---------------------------------------------------------------------------
-// Kerr: first plane crossing from the Mino-time integrals (independent of physics/raytrace.ts)
-//
-// Along a ray, Mino time is int du/sqrt(P(u)) = int dmu/sqrt(M(mu)) (Carter 1968, Phys. Rev. 174,
-// 1559: R(r) and Theta(theta); u = 1/r, mu = cos theta; Mino 2003, Phys. Rev. D 67, 084027), with
-//   P(u) = 1 + (a^2 - lambda^2 - q) u^2 + 2 (q + (lambda - a)^2) u^3 - a^2 q u^4,
-//   M(mu) = q - (q + lambda^2 - a^2) mu^2 - a^2 mu^4 = (mu+^2 - mu^2)(a^2 mu^2 + q/mu+^2).
-// Polar part with mu = mu+ sin t: int dmu/sqrt(M) = int dt / sqrt(a^2 mu+^2 sin^2 t + q/mu+^2).
-// Radial part near a turning point u_t: P(u) = (u_t - u) D(u) with
-//   D(u) = -[c2 (u + u_t) + c3 (u^2 + u u_t + u_t^2) + c4 (u^3 + u^2 u_t + u u_t^2 + u_t^3)]
-// (c2, c3, c4 the coefficients of u^2, u^3, u^4), and u = u_t (1 - s^2) as for Schwarzschild.
+// Kerr: first plane crossing from the Mino-time integrals (independent of physics/raytrace.ts;
+// the quadrature, with its derivation, is test/support/geodesic-quadrature.ts planeCrossing:
+// Carter 1968 and Mino 2003 for the radial and polar integrals, 24 graded panels toward the
+// radial turning point here).
 
+/** Radius of the first plane crossing of the ray through (alpha, beta); -1 if it is captured or leaves first. */
 function kerrFirstCrossing(a: number, inc: number, alpha: number, beta: number, scale: number): number {
-  const lam = -alpha * Math.sin(inc); // Bardeen 1973
-  const q = beta * beta + (alpha * alpha - a * a) * Math.cos(inc) ** 2; // Cunningham & Bardeen 1973
+  const { q } = constantsOfMotion(a, inc, alpha, beta);
   if (!(q > 0) || beta === 0) throw new Error('test point must have q > 0 and beta != 0');
-  // polar: Mino time from the observer (mu = cos i) to the first crossing of mu = 0
-  const B = q + lam * lam - a * a;
-  const sq = Math.sqrt(B * B + 4 * a * a * q);
-  const mp2 = B >= 0 ? (2 * q) / (B + sq) : (sq - B) / (2 * a * a); // mu+^2, the positive root of M in mu^2, without cancellation
-  const c = q / mp2;
-  const T = (t1: number) => gl((t) => 1 / Math.sqrt(a * a * mp2 * Math.sin(t) ** 2 + c), uniformCuts(0, t1, 4, scale));
-  const ti = Math.asin(Math.min(1, Math.cos(inc) / Math.sqrt(mp2)));
-  // beta < 0: mu falls straight to 0; beta > 0: it first rises to mu+ (dmu/dl = beta sin i at the observer)
-  const L = beta < 0 ? T(ti) : 2 * T(Math.PI / 2) - T(ti);
-  // radial
-  const c2 = a * a - lam * lam - q;
-  const c3 = 2 * (q + (lam - a) * (lam - a));
-  const c4 = -a * a * q;
-  const P = (u: number) => 1 + u * u * (c2 + u * (c3 + u * c4));
-  const uH = 1 / (1 + Math.sqrt(1 - a * a));
-  // smallest positive root of P below the horizon, if any: P(0) = 1, so it lies before the first
-  // local minimum of P (a root of the cubic P') at which P <= 0
-  const dP = (u: number) => u * (2 * c2 + u * (3 * c3 + 4 * c4 * u));
-  let ut = NaN;
-  const n = 400;
-  let prev = 0;
-  for (let k = 1; k <= n && Number.isNaN(ut); k++) {
-    const u0 = ((k - 1) * uH) / n;
-    const u1 = (k * uH) / n;
-    const m = dP(u0) < 0 && dP(u1) >= 0 ? brent(dP, u0, u1, TIGHT).root : k === n ? uH : NaN;
-    if (Number.isNaN(m)) continue;
-    if (P(m) <= 0) ut = brent(P, prev, m, TIGHT).root;
-    prev = m;
-  }
-  if (Number.isNaN(ut)) {
-    // no turning point: Mino time to u is int_0^u du/sqrt(P)
-    const I = (u: number) => gl((x) => 1 / Math.sqrt(P(x)), uniformCuts(0, u, 8, scale));
-    if (I(uH) < L) return -1; // falls through the horizon before reaching the plane
-    return 1 / brent((u) => I(u) - L, 0, uH, TIGHT).root;
-  }
-  const D = (u: number) => -(c2 * (u + ut) + c3 * (u * u + u * ut + ut * ut) + c4 * (u * u * u + u * u * ut + u * ut * ut + ut * ut * ut));
-  const hk = (s: number) => (2 * Math.sqrt(ut)) / Math.sqrt(D(ut * (1 - s * s)));
-  const near = (s1: number) => (s1 === 0 ? 0 : gl(hk, gradedCuts(0, s1, 24, scale)));
-  const toTurn = near(1);
-  const target = L <= toTurn ? L : 2 * toTurn - L;
-  if (target <= 0) return -1; // leaves for infinity before reaching the plane
-  const s = brent((s) => toTurn - near(s) - target, 0, 1, TIGHT).root;
-  return 1 / (ut * (1 - s * s));
+  const r = planeCrossing(a, inc, alpha, beta, 1, scale, 24);
+  return r > 0 && r < Infinity ? r : -1;
 }
 
 const rel = (x: number, ref: number) => Math.abs(x / ref - 1);

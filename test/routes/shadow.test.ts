@@ -11,6 +11,7 @@ import type { FastifyInstance } from 'fastify';
 import { buildApp } from '../../server/app.js';
 import { makeConfig } from '../../server/config.js';
 import { reference } from '../support/reference.js';
+import { checkXml } from '../support/xml.js';
 
 const { D, exact, relErr } = reference(40);
 type Dec = InstanceType<typeof D>;
@@ -84,46 +85,6 @@ function diametersRef(a: Dec, i: Dec): { h: Dec; v: Dec } {
     else y = x2;
   }
   return { h, v: b2(x.plus(y).div(2)).sqrt().times(2) };
-}
-
-// ---------------------------------------------------------------------------
-// A minimal XML well-formedness check (no new packages): one root, balanced tags, quoted attributes, entities.
-
-function checkXml(text: string): string[] {
-  const problems: string[] = [];
-  let s = text.replace(/^<\?xml[^?]*\?>\s*/, '');
-  const stack: string[] = [];
-  let roots = 0;
-  const TAG = /<[^<>]*>/g;
-  let last = 0;
-  const textOk = (t: string) => !/&(?!(amp|lt|gt|quot|apos|#\d+|#x[0-9a-fA-F]+);)/.test(t) && !t.includes('>');
-  for (let m = TAG.exec(s); m; m = TAG.exec(s)) {
-    const between = s.slice(last, m.index);
-    if (!textOk(between)) problems.push(`bad text: ${between.slice(0, 40)}`);
-    if (stack.length === 0 && between.trim() !== '') problems.push('text outside the root');
-    last = m.index + m[0].length;
-    const tag = m[0];
-    const close = /^<\/([A-Za-z_][\w:.-]*)\s*>$/.exec(tag);
-    if (close) {
-      if (stack.pop() !== close[1]) problems.push(`unbalanced </${close[1]}>`);
-      continue;
-    }
-    const open = /^<([A-Za-z_][\w:.-]*)((?:\s+[A-Za-z_:][\w:.-]*="[^"<]*")*)\s*(\/?)>$/.exec(tag);
-    if (!open) {
-      problems.push(`malformed tag ${tag.slice(0, 60)}`);
-      continue;
-    }
-    const names = [...open[2].matchAll(/([A-Za-z_:][\w:.-]*)=/g)].map((x) => x[1]);
-    if (new Set(names).size !== names.length) problems.push(`duplicate attribute in ${tag.slice(0, 60)}`);
-    for (const v of open[2].matchAll(/="([^"]*)"/g)) if (!textOk(v[1])) problems.push(`bad attribute value ${v[1].slice(0, 40)}`);
-    if (stack.length === 0) roots++;
-    if (open[3] !== '/') stack.push(open[1]);
-  }
-  s = s.slice(last);
-  if (s.trim() !== '') problems.push('text after the root');
-  if (stack.length > 0) problems.push(`unclosed ${stack.join(', ')}`);
-  if (roots !== 1) problems.push(`${roots} root elements`);
-  return problems;
 }
 
 // Invented scenario: the hole "Tamsin A*" of 3.1e9 solar masses at 27 Mpc, seen by the invented
