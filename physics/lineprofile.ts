@@ -90,6 +90,8 @@ export class RayBudgetError extends Error {
 
 /** Extra quadtree levels allowed only where a disk feature thinner than a cell hides between corners. */
 const THIN_LEVELS = 3;
+/** Samples per side of the bilinear estimate of an edge cell's covered share (1/32 of a cell per side). */
+const SHARE_SAMPLES = 32;
 
 /** Smallest image radius of the grid, rg: the disk inside it is below 1e-8 of any image's area. */
 const RHO_MIN = 0.02;
@@ -230,7 +232,7 @@ export function traceTransfer(geom: DiskGeometry, opts: { part?: { index: number
   };
   /**
    * Share of a cell on the disk's edge that the disk's direct image covers: the first-crossing
-   * radius interpolated bilinearly between the corners, sampled on an 8 x 8 grid, inside
+   * radius interpolated bilinearly between the corners, sampled on a SHARE_SAMPLES^2 grid, inside
    * [rIn, rOut]. binProfile weighs a cell by the mean over its corners with misses as zero
    * (share hits/4); the area is scaled to make the share this one. Falls back to hits/4 where a
    * corner was captured, left without crossing, or sees a higher-order image.
@@ -244,7 +246,7 @@ export function traceTransfer(geom: DiskGeometry, opts: { part?: { index: number
     }
     const [f00, f10, f01, f11] = c.map((id) => nodeFirst[id]); // corners (J0,K0), (J0+s,K0), (J0,K0+s), (J0+s,K0+s)
     let inside = 0;
-    const n = 8;
+    const n = SHARE_SAMPLES;
     for (let i = 0; i < n; i++) {
       const x = (i + 0.5) / n;
       for (let j = 0; j < n; j++) {

@@ -489,6 +489,14 @@ export async function lineProfileRoutes(app: FastifyInstance, opts: { config: Co
               }
               throw err;
             }
+            if (!(t.gMax > 0)) {
+              // no ray of the grid saw the disk: far thinner than the grid's finest cell
+              for (const i of grp.members) {
+                const msg = `no ray of the "${grp.geometry.accuracy}" image grid reaches this disk (r_in = ${fmt(grp.geometry.rIn)} to r_out = ${fmt(grp.geometry.rOut)} rg is thinner than its finest cell); use accuracy "standard" or "fine", or a wider disk`;
+                results[i] = problem(422, msg, [{ pointer: `${batch ? `/items/${i}` : ''}/r_out`, message: msg }], 'disk-not-resolved');
+              }
+              return;
+            }
             const binned = await rays.bin(t, grp.members.map((i) => (slots[i] as Plan).job), signal);
             grp.members.forEach((i, k) => {
               const out = shape(slots[i] as Plan, t, binned[k]);

@@ -245,6 +245,17 @@ describe('errors', () => {
     expect(res.body.detail).toMatch(message);
   });
 
+  it('422 for a disk thinner than the finest cell of the grid ("fast": a 0.2 % ring), which "standard" resolves', async () => {
+    const ring = { ...TAMSIN, body: { spin: 0 }, inclination: 0, r_in: 10, r_out: 10.02, energies: { min: 5, max: 5.2, bins: 40 } };
+    const res = await post(ring);
+    expect(res.status).toBe(422);
+    expect(res.body.errors[0].pointer).toBe('/r_out');
+    expect(res.body.detail).toMatch(/standard/);
+    const ok = await post({ ...ring, accuracy: 'standard' });
+    expect(ok.status).toBe(200);
+    expect(Math.abs(ok.body.g_min / Math.sqrt(1 - 3 / 10) - 1)).toBeLessThan(1e-7); // face-on: g = sqrt(1 - 3M/r), exact
+  });
+
   it('flags a disk reaching inside the ISCO (BPT72)', async () => {
     const res = await post({ ...TAMSIN, r_in: 3.2 });
     expect(res.status).toBe(200);
