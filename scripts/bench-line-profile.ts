@@ -2,9 +2,9 @@
  * The line-profile part of `npm run bench` (called by bench.ts against a fresh server whose worker
  * threads may use every core). It measures, for the case of issue 6 (a* = 0.998, i = 30 deg,
  * r_in = ISCO, r_out = 400 rg, q = 3, 6.4 keV, 300 logarithmic bins from 1 to 9 keV, "standard"):
- *   - cold: the first request of the geometry (empty cache), once with the worker pool still to
- *     start and once more for a second new geometry (pool running); median over `coldRuns`
- *     geometries that differ only in r_out by a part in 1e9 (a new cache key each);
+ *   - cold: the first request of a geometry (empty cache): the first request after start-up (the
+ *     server has started and warmed its worker threads, as server/start.ts does), then the median
+ *     of 3 more geometries that differ only in r_out by parts in 1e9 (a new cache key each);
  *   - warm: the same geometry with a new emissivity index each time (median and p90 of 20);
  *   - a batch of 100 emissivities for one cached geometry (median of 5);
  *   - rays per second per core (rays of the cold trace / cold time / worker threads);
@@ -82,7 +82,7 @@ export async function benchLineProfile(base: string, serverThreads = availablePa
 
   // Cold: a new geometry each time (r_out differs by parts in 1e9: a new cache key, the same work).
   const first = await profile(geometry(0));
-  log(`  line-profile cold (pool starting): ${first.ms.toFixed(0)} ms, ${first.p.rays} rays`);
+  log(`  line-profile cold (first request after start-up): ${first.ms.toFixed(0)} ms, ${first.p.rays} rays`);
   const coldMs: number[] = [];
   for (let k = 1; k <= 3; k++) coldMs.push((await profile(geometry(k))).ms);
   log(`  line-profile cold: ${coldMs.map((m) => m.toFixed(0)).join(', ')} ms`);

@@ -107,6 +107,8 @@ async function main(): Promise<void> {
   }
 
   await app.listen({ host: config.HOST, port: config.PORT });
+  // As server/start.ts does: the ray-tracing threads start (and warm up) before the ready line.
+  await app.lapse.rays.warmUp();
   const address = app.server.address();
   if (address === null || typeof address === 'string') fatal(`unexpected listen address ${String(address)}`);
   process.stdout.write(`${READY_PREFIX} url=http://127.0.0.1:${address.port} pid=${process.pid} app=${appDir ? resolve(appDir) : 'sources'}\n`);

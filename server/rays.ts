@@ -90,6 +90,10 @@ export class RayService {
         maxThreads: this.threads,
         maxQueue: this.config.RAY_QUEUE_MAX,
         idleTimeout: 60_000,
+        // Lower the worker threads' scheduling priority (Linux nice +10, through piscina's
+        // optional @napi-rs/nice): when tracing saturates the cores, the event loop still gets
+        // the CPU first, so other requests keep answering quickly.
+        niceIncrement: 10,
       });
     }
     return this.pool;
@@ -204,6 +208,19 @@ export class RayService {
       Array.from({ length: chunks }, (_, k) => this.run<BinResult[]>({ kind: 'bin', transfer: shared, jobs: jobs.slice(k * size, (k + 1) * size) }, signal)),
     );
     return parts.flat();
+  }
+
+  /**
+   * Starts the worker threads and runs one small trace on each (compiling the tracer), so that the
+   * first real request does not pay for start-up. Nothing is cached.
+   */
+  async warmUp(): Promise<void> {
+    const geometry: DiskGeometry = { a: 0.5, inclination: 0.5, rIn: 6, rOut: 20, accuracy: 'fast' };
+    await Promise.all(
+      Array.from({ length: this.threads }, (_, index) =>
+        this.run({ kind: 'trace', geometry, part: { index, of: this.threads }, maxRays: ACCURACY.fast.maxRays }, AbortSignal.timeout(30_000)),
+      ),
+    );
   }
 
   /** Calls an exported function of a worker-side module (see ray-worker.ts CALLABLE). */

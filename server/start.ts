@@ -51,6 +51,8 @@ async function main(): Promise<void> {
     app.log.fatal({ err }, 'cannot listen');
     process.exit(1);
   }
+  // Start the ray-tracing threads now rather than on the first line-profile request.
+  app.lapse.rays.warmUp().catch((err: unknown) => app.log.warn({ err }, 'ray-tracing warm-up failed'));
 }
 
 void main();
