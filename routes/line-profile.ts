@@ -7,7 +7,7 @@
  * accuracy: one trace each, cached), asks the pool for the transfer data and the binned profiles,
  * and shapes the replies. It never traces on the event loop.
  */
-import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
+import type { FastifyInstance } from 'fastify';
 import { Type, type Static } from '@sinclair/typebox';
 import { C } from '../physics/constants.js';
 import { horizonOuter, isco, photonOrbit } from '../physics/kerr.js';
@@ -16,7 +16,7 @@ import { hzToSpectral, spectralToHz, spectralKind, UnitError } from '../physics/
 import { findNonFinite } from '../server/cases.js';
 import type { Config } from '../server/config.js';
 import { fail, length, lengthInRg, massAsGm, quantity, spectral, type LengthInput } from '../server/inputs.js';
-import { InputError, problem, type FieldError, type Problem } from '../server/problems.js';
+import { InputError, problem, sendProblem, type FieldError, type Problem } from '../server/problems.js';
 import { RayServiceError, requestSignal, sendRayServiceError, type CachedTransfer } from '../server/rays.js';
 import type { BinJob, BinResult, EmissivitySpec } from '../server/ray-worker.js';
 import { CaseOrBatch, LENGTH_UNITS, MASS_UNITS, ProblemSchema, Provenance, Quantity, ResultOrBatch, type QuantityInput } from '../server/schemas.js';
@@ -390,13 +390,6 @@ function shape(plan: Plan, t: CachedTransfer, res: BinResult): Record<string, un
 
 // ---------------------------------------------------------------------------
 
-function sendProblemReply(reply: FastifyReply, request: FastifyRequest, p: Problem) {
-  return reply
-    .code(p.status)
-    .type('application/problem+json')
-    .send({ ...p, instance: request.url.split('?')[0], request_id: request.id });
-}
-
 export async function lineProfileRoutes(app: FastifyInstance, opts: { config: Config }): Promise<void> {
   const config = opts.config;
   const rays = app.lapse.rays;
@@ -512,7 +505,7 @@ export async function lineProfileRoutes(app: FastifyInstance, opts: { config: Co
       }
       if (!batch) {
         const only = results[0];
-        if ('status' in only && 'type' in only) return sendProblemReply(reply, request, only as Problem);
+        if ('status' in only && 'type' in only) return sendProblem(reply, only as Problem, request);
         const accept = request.headers.accept;
         if (accept && accept.includes('image/svg+xml')) return reply.type('image/svg+xml').send(lineProfileSvg(only));
         return reply.type('application/json; charset=utf-8').send(JSON.stringify(only));

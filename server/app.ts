@@ -13,7 +13,7 @@ import underPressure from '@fastify/under-pressure';
 import { makeConfig, type Config } from './config.js';
 import { metricsPlugin } from './metrics.js';
 import { registerSecurityHeaders } from './security.js';
-import { InputError, problem, type Problem } from './problems.js';
+import { InputError, problem, sendProblem } from './problems.js';
 import { explainAjvErrors } from './validation.js';
 import { openapiDocument } from './openapi.js';
 import { routes } from '../routes/index.js';
@@ -27,12 +27,6 @@ declare module 'fastify' {
 
 const REQUEST_ID_RE = /^[A-Za-z0-9._:@-]{1,128}$/;
 
-function sendProblem(reply: FastifyReply, p: Problem, request: FastifyRequest) {
-  return reply
-    .code(p.status)
-    .type('application/problem+json')
-    .send({ ...p, instance: request.url.split('?')[0], request_id: request.id });
-}
 
 export interface BuildOptions {
   /** Where log lines go (default stdout); tests pass a stream to read them. */
@@ -203,8 +197,7 @@ export async function buildApp(config: Config = makeConfig(), options: BuildOpti
   app.get('/healthz', { schema: { hide: true } }, async () => ({ status: 'ok' }));
   app.get('/readyz', { schema: { hide: true } }, async (request, reply) => {
     if (app.lapse.draining) {
-      reply.header('retry-after', '5');
-      return sendProblem(reply, problem(503, 'the service is shutting down', undefined, 'draining'), request);
+      return sendProblem(reply, problem(503, 'the service is shutting down', undefined, 'draining'), request, 5);
     }
     return { status: 'ready' };
   });

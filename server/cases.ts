@@ -8,7 +8,7 @@ import type { TSchema } from '@sinclair/typebox';
 import { propagateLinear, propagateMonteCarlo, type Measured, type Model, type Outputs, type Variable } from '../physics/uncertainty.js';
 import type { Config } from './config.js';
 import { CaseOrBatch, ResultOrBatch, ProblemSchema, type UncertaintyMethodInput } from './schemas.js';
-import { InputError, physicsProblem, problem, type FieldError, type Problem } from './problems.js';
+import { InputError, physicsProblem, problem, sendProblem, type FieldError, type Problem } from './problems.js';
 import { RayServiceError, requestSignal, sendRayServiceError } from './rays.js';
 
 export interface Warning {
@@ -231,10 +231,7 @@ export function registerCaseRoute<C>(app: FastifyInstance, config: Config, route
       const results = slots.map((slot, i) => (isProblem(slot) ? slot : runCase(slot.p, slot.pointer, offloaded.get(i))));
       if (!batch) {
         const only = results[0];
-        if (typeof only !== 'string') {
-          reply.code(only.status).type('application/problem+json');
-          return { ...only, instance: request.url, request_id: request.id };
-        }
+        if (typeof only !== 'string') return sendProblem(reply, only, request);
         const accept = request.headers.accept;
         const media = accept && route.renderers ? Object.keys(route.renderers).find((m) => accept.includes(m)) : undefined;
         if (media) return reply.type(media).send(route.renderers![media](JSON.parse(only) as Record<string, unknown>));

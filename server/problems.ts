@@ -1,3 +1,4 @@
+import type { FastifyReply, FastifyRequest } from 'fastify';
 import { PhysicsDomainError } from '../physics/errors.js';
 
 /**
@@ -76,4 +77,13 @@ export function physicsProblem(err: unknown, basePointer: string): Problem | und
     return problem(422, err.message, [{ pointer: basePointer, message: err.message }]);
   }
   return undefined;
+}
+
+/** Sends a problem document as the reply, with the request path and id (and Retry-After, s). */
+export function sendProblem(reply: FastifyReply, p: Problem, request: FastifyRequest, retryAfterSeconds?: number) {
+  if (retryAfterSeconds !== undefined) reply.header('retry-after', String(retryAfterSeconds));
+  return reply
+    .code(p.status)
+    .type('application/problem+json')
+    .send({ ...p, instance: request.url.split('?')[0], request_id: request.id });
 }

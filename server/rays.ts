@@ -11,7 +11,7 @@ import { LRUCache } from 'lru-cache';
 import { ACCURACY, mergeTransfers, type DiskGeometry, type Transfer } from '../physics/lineprofile.js';
 import type { FastifyReply, FastifyRequest } from 'fastify';
 import type { Config } from './config.js';
-import { problem } from './problems.js';
+import { problem, sendProblem } from './problems.js';
 import type { BinJob, BinResult, RayTask, SharedTransfer, TraceReply } from './ray-worker.js';
 
 /** A task that could not run: the queue is full, the time is up, or the client went away. */
@@ -267,9 +267,5 @@ export function sendRayServiceError(reply: FastifyReply, request: FastifyRequest
   } else {
     p = problem(503, err.message, undefined, 'overloaded');
   }
-  return reply
-    .code(503)
-    .header('retry-after', '1')
-    .type('application/problem+json')
-    .send({ ...p, instance: request.url.split('?')[0], request_id: request.id });
+  return sendProblem(reply, p, request, 1);
 }
