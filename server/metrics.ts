@@ -47,7 +47,7 @@ export const metricsPlugin = fp(async (app: FastifyInstance) => {
   };
   mirrored('lapse_ray_traces_total', 'Line-profile geometries traced (transfer data computed).', () => rays.stats.traces);
   mirrored('lapse_ray_cache_hits_total', 'Line-profile requests served from cached transfer data.', () => rays.stats.cacheHits);
-  mirrored('lapse_ray_tasks_aborted_total', 'Worker tasks abandoned because the client went away.', () => rays.stats.aborted);
+  mirrored('lapse_ray_requests_cancelled_total', 'Requests whose ray tracing was abandoned because the client went away.', () => rays.stats.aborted);
   mirrored('lapse_ray_timeouts_total', 'Requests whose ray tracing exceeded RAY_TIMEOUT_MS.', () => rays.stats.timeouts);
   mirrored('lapse_ray_queue_rejections_total', 'Worker tasks refused because the queue was full (RAY_QUEUE_MAX).', () => rays.stats.rejected);
   new Gauge({ name: 'lapse_ray_cache_entries', help: 'Geometries whose transfer data are cached.', registers: [registry], collect() { this.set(rays.cacheEntries); } });

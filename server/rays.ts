@@ -66,7 +66,7 @@ export class RayService {
   private readonly cache: LRUCache<string, CachedTransfer>;
   private readonly inflight = new Map<string, InFlight>();
   readonly threads: number;
-  /** Counters for /metrics and tests. */
+  /** Counters for /metrics and tests: geometries traced, cache hits, requests cancelled or timed out, tasks refused. */
   readonly stats = { traces: 0, cacheHits: 0, aborted: 0, timeouts: 0, rejected: 0 };
 
   constructor(private readonly config: Config) {
@@ -115,13 +115,18 @@ export class RayService {
     }
   }
 
+  /** Signals already counted in stats (a request's signal is seen by each of its tasks). */
+  private readonly counted = new WeakSet<AbortSignal>();
+
   private abortError(signal: AbortSignal): RayServiceError {
     const reason = signal.reason as { name?: string } | undefined;
-    if (reason?.name === 'TimeoutError') {
-      this.stats.timeouts++;
-      return new RayServiceError('timeout', `the computation did not finish within ${this.config.RAY_TIMEOUT_MS} ms (RAY_TIMEOUT_MS)`, this.config.RAY_TIMEOUT_MS);
+    const timeout = reason?.name === 'TimeoutError';
+    if (!this.counted.has(signal)) {
+      this.counted.add(signal);
+      if (timeout) this.stats.timeouts++;
+      else this.stats.aborted++;
     }
-    this.stats.aborted++;
+    if (timeout) return new RayServiceError('timeout', `the computation did not finish within ${this.config.RAY_TIMEOUT_MS} ms (RAY_TIMEOUT_MS)`, this.config.RAY_TIMEOUT_MS);
     return new RayServiceError('aborted', 'the request was cancelled');
   }
 
