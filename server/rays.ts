@@ -155,6 +155,7 @@ export class RayService {
     let job = this.inflight.get(key);
     if (!job) {
       const controller = new AbortController();
+      this.counted.add(controller.signal); // internal: its waiters' own signals are the ones counted
       const parts = this.threads;
       const maxRays = Math.ceil(ACCURACY[g.accuracy].maxRays / parts) + 4000;
       this.stats.traces++;
