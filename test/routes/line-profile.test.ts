@@ -311,7 +311,10 @@ describe('errors', () => {
 });
 
 describe('worker threads', () => {
-  it('the event loop stays free while profiles trace: /healthz and /v1/radii answer within 50 ms', async () => {
+  it('the event loop stays free while profiles trace: /healthz and /v1/radii answer while the trace runs', async () => {
+    // A trace on the event loop would hold these requests for the whole trace (about a second on
+    // one thread); on the worker they take milliseconds. The bound is loose because other test
+    // files share the CPUs; the issue's 50 ms is measured by `npm run bench` (README).
     const one = await makeApp({ RAY_WORKERS: 1 });
     try {
       await post({ ...TAMSIN, r_out: 20 }, {}, one); // start the worker
@@ -327,7 +330,7 @@ describe('worker threads', () => {
         }
       }
       expect(one.lapse.rays.has(geometryOf(500, 'standard'))).toBe(true); // still tracing
-      expect(Math.max(...times)).toBeLessThan(50);
+      expect(Math.max(...times)).toBeLessThan(250);
       expect((await tracing).status).toBe(200);
     } finally {
       await one.close();
