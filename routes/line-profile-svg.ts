@@ -6,8 +6,8 @@
  * normalised to a peak of 1, as a step curve (each bin at its own width, so logarithmic or
  * irregular bins give the right shape) on a linear x axis in the unit of the edges. Around it: a
  * grid with round tick values, axis titles named by the kind of unit (photon energy, frequency,
- * wavelength), a dashed line at the rest value (when it lies inside the x range and is in the unit
- * of the edges), dotted markers at the ends of the line (`line_range`), and a caption with the
+ * wavelength), a dashed line at the rest value (converted to the unit of the edges; drawn when it
+ * lies inside the x range), dotted markers at the ends of the line (`line_range`), and a caption with the
  * geometry, the accuracy and the share of the line inside the bins.
  *
  * Reading the figure back (the tests do): the plot area, `<rect id="plot-area">`, carries its data
@@ -21,7 +21,7 @@
  * The renderer is pure and never throws: missing or malformed fields print '?', unusable bins give
  * an empty plot with a note, and no NaN or Infinity reaches the output.
  */
-import { spectralKind } from '../physics/units.js';
+import { hzToSpectral, spectralKind, spectralToHz } from '../physics/units.js';
 
 const W = 760;
 const H = 560;
@@ -208,8 +208,19 @@ export function lineProfileSvg(result: Record<string, unknown>): string {
 
   // rest value and the ends of the line
   const rest = obj(result.rest);
-  const restValue = num(rest.value);
-  const restUnit = str(rest.unit);
+  const restGiven = num(rest.value);
+  const restGivenUnit = str(rest.unit);
+  // the rest value in the unit of the x axis (nu = c/lambda = E/h: physics/units.ts)
+  let restValue = restGiven;
+  let restUnit = restGivenUnit;
+  if (restGivenUnit !== undefined && unitRaw !== undefined && restGivenUnit !== unitRaw && Number.isFinite(restGiven) && restGiven > 0) {
+    try {
+      restValue = hzToSpectral(spectralToHz(restGiven, restGivenUnit), unitRaw);
+      restUnit = unitRaw;
+    } catch {
+      restUnit = undefined; // not convertible: no rest line
+    }
+  }
   const legend: string[] = [];
   const legendY = PLOT.y - 14;
   let lx = PLOT.x;
@@ -260,7 +271,7 @@ export function lineProfileSvg(result: Record<string, unknown>): string {
   const acc = obj(result.accuracy);
   const level = str(acc.level) ?? '?';
   const frac = num(result.fraction_in_range);
-  const restText = Number.isFinite(restValue) ? `${fmt(restValue)} ${restUnit ?? '?'}` : '?';
+  const restText = Number.isFinite(restGiven) ? `${fmt(restGiven)} ${restGivenUnit ?? '?'}` : '?';
   const caption1 = `Spin a* = ${fmt(num(result.spin))} · inclination ${fmt(incDeg)}° · disk from r_in = ${fmt(rg('r_in'))} rg to r_out = ${fmt(rg('r_out'))} rg (ISCO ${fmt(rg('isco'))} rg)`;
   const caption2 = `Rest value ${restText} · ${fluxKind ? fluxKind.toLowerCase() : '?'} flux · redshift factor g from ${fmt(num(result.g_min))} to ${fmt(num(result.g_max))}`;
   const caption3 = `Accuracy ${level} (L1 error estimate ${fmt(num(acc.l1_estimate))}, ${Number.isFinite(num(result.rays)) ? String(Math.round(num(result.rays))) : '?'} rays) · ${fmt(frac * 100)} % of the line lies inside the bins`;

@@ -288,7 +288,7 @@ describe('lineProfileSvg', () => {
     expect(textOf(odd, 'x-label')).toBe('Observed spectral value [a<b&"c]');
   });
 
-  it('the rest line sits at the rest value; it is left out outside the range or in another unit', () => {
+  it('the rest line sits at the rest value (converted to the axis unit); it is left out outside the range or for a non-spectral unit', () => {
     const svg = render(wren7());
     const F = frame(svg);
     const rest = element(svg, 'rest');
@@ -304,9 +304,13 @@ describe('lineProfileSvg', () => {
     expect(Number(attr(element(off, 'rest')!, 'x1'))).toBeCloseTo(F.sx(4.7), 2);
 
     expect(element(render(wren7({ rest: { value: 7.1, unit: 'keV' } })), 'rest')).toBeUndefined();
-    // another unit (the brief's rule: no conversion here), even when the bare number falls in the range
-    expect(element(render(wren7({ rest: { value: 5200, unit: 'eV' } })), 'rest')).toBeUndefined();
+    // another unit is converted to the axis unit: 5200 eV is 5.2 keV; 5.2 eV lies far outside the range
+    expect(Number(attr(element(render(wren7({ rest: { value: 5200, unit: 'eV' } })), 'rest')!, 'x1'))).toBeCloseTo(F.sx(5.2), 2);
     expect(element(render(wren7({ rest: { value: 5.2, unit: 'eV' } })), 'rest')).toBeUndefined();
+    // a wavelength: E = h c / lambda, h c = 12.398419843320026 keV Angstrom (CODATA 2018, exact h, c, e)
+    expect(Number(attr(element(render(wren7({ rest: { value: 12.398419843320026 / 5.2, unit: 'Angstrom' } })), 'rest')!, 'x1'))).toBeCloseTo(F.sx(5.2), 2);
+    // not a spectral unit: no line
+    expect(element(render(wren7({ rest: { value: 5.2, unit: 'kg' } })), 'rest')).toBeUndefined();
     expect(element(render(wren7({ rest: undefined })), 'rest')).toBeUndefined();
   });
 
