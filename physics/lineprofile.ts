@@ -66,6 +66,8 @@ export interface Transfer {
   nodeR: Float64Array;
   nodeG: Float64Array;
   nodeMu: Float64Array;
+  /** ln r of each ray's emission radius (0 for a miss), for fast power-law weights. */
+  nodeLnR: Float64Array;
   /** Leaf cells of the full-resolution grid. */
   cells: Cells;
   /** Leaf cells of the half-resolution grid (same rays), for the accuracy estimate. */
@@ -308,6 +310,7 @@ export function traceTransfer(geom: DiskGeometry, opts: { part?: { index: number
     nodeR: nodeR.slice(0, nodes),
     nodeG: nodeG.slice(0, nodes),
     nodeMu: nodeMu.slice(0, nodes),
+    nodeLnR: nodeR.slice(0, nodes).map((r) => (r > 0 ? Math.log(r) : 0)),
     cells: pack(fine),
     coarse: pack(coarse),
     rays,
@@ -351,6 +354,7 @@ export function mergeTransfers(parts: Transfer[]): Transfer {
     nodeR: cat(parts.map((p) => p.nodeR)),
     nodeG: cat(parts.map((p) => p.nodeG)),
     nodeMu: cat(parts.map((p) => p.nodeMu)),
+    nodeLnR: cat(parts.map((p) => p.nodeLnR)),
     cells: cells((t) => t.cells),
     coarse: cells((t) => t.coarse),
     rays: parts.reduce((n, p) => n + p.rays, 0),
@@ -590,9 +594,21 @@ export interface BinnedProfile {
 }
 
 /** Per-ray weights g^power eps(r) I(mu_e) (0 for rays that miss the disk). */
-export function rayWeights(t: Pick<Transfer, 'nodeR' | 'nodeG' | 'nodeMu'>, o: Omit<BinOptions, 'gEdges'>): Float64Array {
+export function rayWeights(t: Pick<Transfer, 'nodeR' | 'nodeG' | 'nodeMu' | 'nodeLnR'>, o: Omit<BinOptions, 'gEdges'>): Float64Array {
   const n = t.nodeR.length;
   const w = new Float64Array(n);
+  const index = (o.emissivity as Emissivity & { index?: number }).index;
+  if (index !== undefined && (o.law === isotropic || o.law === laorLimbDarkening)) {
+    // the common case without function calls: r^-q = exp(-q ln r), the law inline
+    const laor = o.law === laorLimbDarkening;
+    for (let i = 0; i < n; i++) {
+      if (t.nodeR[i] <= 0) continue;
+      const g = t.nodeG[i];
+      const g3 = g * g * g;
+      w[i] = (o.power === 3 ? g3 : g3 * g) * Math.exp(-index * t.nodeLnR[i]) * (laor ? 1 + 2.06 * t.nodeMu[i] : 1);
+    }
+    return w;
+  }
   for (let i = 0; i < n; i++) {
     const r = t.nodeR[i];
     if (r <= 0) continue;
@@ -620,6 +636,7 @@ export function binProfile(cells: Cells, weights: Float64Array, gEdges: ArrayLik
   const c1 = new Float64Array(nb + 2);
   const e0 = edges[0];
   const eN = edges[nb];
+  const finder = slotFinder(edges);
   let total = 0;
   const n = cells.area.length;
   const area = cells.area;
@@ -642,10 +659,10 @@ export function binProfile(cells: Cells, weights: Float64Array, gEdges: ArrayLik
     }
     // uniform density w/width on [lo, hi] = ramp(x - lo) - ramp(x - hi), times the density
     const d = w / width;
-    const sLo = slot(edges, lo);
+    const sLo = finder(lo);
     c0[sLo] += d;
     c1[sLo] += d * lo;
-    const sHi = slot(edges, hi);
+    const sHi = finder(hi);
     c0[sHi] -= d;
     c1[sHi] -= d * hi;
   }
@@ -679,6 +696,31 @@ function slot(edges: ArrayLike<number>, x: number): number {
   return lo + 1;
 }
 
+/**
+ * A fast `slot` for many lookups in the same edges: a table over 4 nb equal buckets gives the
+ * slot at each bucket's start, then a short forward scan (binary search when the edges are so
+ * irregular that a bucket holds many of them).
+ */
+function slotFinder(edges: ArrayLike<number>): (x: number) => number {
+  const nb = edges.length - 1;
+  const e0 = edges[0];
+  const eN = edges[nb];
+  const buckets = 4 * nb;
+  const scale = buckets / (eN - e0);
+  const table = new Int32Array(buckets + 1);
+  for (let k = 0; k <= buckets; k++) table[k] = slot(edges, e0 + k / scale);
+  return (x: number): number => {
+    if (x < e0) return 0;
+    if (x >= eN) return nb + 1;
+    const k = Math.min(buckets, Math.floor((x - e0) * scale));
+    let s = table[k]; // the slot of the bucket's start: edges[s - 1] <= start <= x
+    if (s < 1) s = 1;
+    while (s > 1 && edges[s - 1] > x) s--; // the start rounded above x
+    for (let steps = 0; s <= nb && edges[s] <= x; s++) if (++steps > 8) return slot(edges, x);
+    return s;
+  };
+}
+
 /** Index of the bin [edges[b], edges[b+1]) holding x, or -1 outside (the last bin includes its top edge). */
 function findBin(edges: ArrayLike<number>, x: number): number {
   const nb = edges.length - 1;
@@ -686,9 +728,9 @@ function findBin(edges: ArrayLike<number>, x: number): number {
   return Math.min(slot(edges, x), nb) - 1;
 }
 
-/** Power-law emissivity r^-index. */
-export function powerLaw(index: number): Emissivity {
-  return (r) => Math.pow(r, -index);
+/** Power-law emissivity r^-index (the function carries its index for rayWeights' fast path). */
+export function powerLaw(index: number): Emissivity & { index: number } {
+  return Object.assign((r: number) => Math.pow(r, -index), { index });
 }
 
 /** Broken power law r^-inner inside rBreak, continuous with r^-outer outside. */

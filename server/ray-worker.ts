@@ -43,7 +43,7 @@ export interface BinResult {
 }
 
 /** Transfer data as sent to workers: the same arrays, backed by SharedArrayBuffers when cached. */
-export type SharedTransfer = Pick<Transfer, 'nodeR' | 'nodeG' | 'nodeMu' | 'cells' | 'coarse'>;
+export type SharedTransfer = Pick<Transfer, 'nodeR' | 'nodeG' | 'nodeMu' | 'nodeLnR' | 'cells' | 'coarse'>;
 
 export type RayTask =
   | { kind: 'trace'; geometry: DiskGeometry; part: { index: number; of: number }; maxRays: number }

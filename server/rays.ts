@@ -43,9 +43,9 @@ function share<T extends Float64Array | Int32Array>(a: T): T {
 
 function toShared(t: Transfer): CachedTransfer {
   const cells = (c: Transfer['cells']) => ({ area: share(c.area), gLo: share(c.gLo), gHi: share(c.gHi), corners: share(c.corners) });
-  const shared = { nodeR: share(t.nodeR), nodeG: share(t.nodeG), nodeMu: share(t.nodeMu), cells: cells(t.cells), coarse: cells(t.coarse) };
+  const shared = { nodeR: share(t.nodeR), nodeG: share(t.nodeG), nodeMu: share(t.nodeMu), nodeLnR: share(t.nodeLnR), cells: cells(t.cells), coarse: cells(t.coarse) };
   const bytes =
-    shared.nodeR.byteLength * 3 +
+    shared.nodeR.byteLength * 4 +
     [shared.cells, shared.coarse].reduce((n, c) => n + c.area.byteLength * 3 + c.corners.byteLength, 0);
   return { ...shared, rays: t.rays, gMin: t.gMin, gMax: t.gMax, drift: t.drift, bytes };
 }
@@ -207,7 +207,7 @@ export class RayService {
 
   /** Bins line profiles of one geometry, split over the worker threads. */
   async bin(t: CachedTransfer, jobs: BinJob[], signal: AbortSignal): Promise<BinResult[]> {
-    const shared: SharedTransfer = { nodeR: t.nodeR, nodeG: t.nodeG, nodeMu: t.nodeMu, cells: t.cells, coarse: t.coarse };
+    const shared: SharedTransfer = { nodeR: t.nodeR, nodeG: t.nodeG, nodeMu: t.nodeMu, nodeLnR: t.nodeLnR, cells: t.cells, coarse: t.coarse };
     const chunks = Math.min(this.threads, jobs.length);
     const size = Math.ceil(jobs.length / chunks);
     const parts = await Promise.all(
