@@ -13,7 +13,7 @@ import { C } from '../physics/constants.js';
 import { horizonOuter, isco, photonOrbit } from '../physics/kerr.js';
 import { ACCURACY, type Accuracy, type DiskGeometry } from '../physics/lineprofile.js';
 import { hzToSpectral, spectralToHz, spectralKind, UnitError } from '../physics/units.js';
-import { findNonFinite } from '../server/cases.js';
+import { findNonFinite, isProblem } from '../server/cases.js';
 import type { Config } from '../server/config.js';
 import { fail, length, lengthInRg, massAsGm, quantity, spectral, type LengthInput } from '../server/inputs.js';
 import { InputError, problem, sendProblem, type FieldError, type Problem } from '../server/problems.js';
@@ -437,7 +437,7 @@ export async function lineProfileRoutes(app: FastifyInstance, opts: { config: Co
       // Group by geometry; new geometries cost rays against the budget.
       const groups = new Map<string, { geometry: DiskGeometry; members: number[] }>();
       slots.forEach((s, i) => {
-        if ('status' in s) return;
+        if (isProblem(s)) return;
         const key = JSON.stringify(s.geometry);
         const grp = groups.get(key) ?? { geometry: s.geometry, members: [] };
         grp.members.push(i);
@@ -505,12 +505,12 @@ export async function lineProfileRoutes(app: FastifyInstance, opts: { config: Co
       }
       if (!batch) {
         const only = results[0];
-        if ('status' in only && 'type' in only) return sendProblem(reply, only as Problem, request);
+        if (isProblem(only)) return sendProblem(reply, only, request);
         const accept = request.headers.accept;
         if (accept && accept.includes('image/svg+xml')) return reply.type('image/svg+xml').send(lineProfileSvg(only));
         return reply.type('application/json; charset=utf-8').send(JSON.stringify(only));
       }
-      const parts = results.map((r) => ('status' in r && 'type' in r ? JSON.stringify({ error: r }) : JSON.stringify(r)));
+      const parts = results.map((r) => JSON.stringify(isProblem(r) ? { error: r } : r));
       return reply.type('application/json; charset=utf-8').send(`{"items":[${parts.join(',')}],"count":${parts.length}}`);
     },
   );
