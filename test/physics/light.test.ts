@@ -8,6 +8,7 @@
 import { describe, expect, it } from 'vitest';
 import { PhysicsDomainError } from '../../physics/errors.js';
 import { B_CRITICAL, deflectionExact, deflectionFirstOrder, deflectionSecondOrderGR, shapiroDelay, turningPoint } from '../../physics/light.js';
+import { darwinReference } from '../support/darwin.js';
 import { reference } from '../support/reference.js';
 
 const { D, exact, relErr } = reference(40);
@@ -26,57 +27,7 @@ const d = (x: number): Dec => exact(x);
 // ---------------------------------------------------------------------------
 // 40-digit references, written independently of physics/
 
-/** Carlson's symmetric integral R_F(x, y, z) by duplication (Carlson 1995, Numer. Algorithms 10, 13). */
-function carlsonRF(x: Dec, y: Dec, z: Dec): Dec {
-  for (let i = 0; i < 300; i++) {
-    const sx = x.sqrt();
-    const sy = y.sqrt();
-    const sz = z.sqrt();
-    const lam = sx.times(sy).plus(sx.times(sz)).plus(sy.times(sz));
-    x = x.plus(lam).div(4);
-    y = y.plus(lam).div(4);
-    z = z.plus(lam).div(4);
-    const mu = x.plus(y).plus(z).div(3);
-    const dx = new D(1).minus(x.div(mu));
-    const dy = new D(1).minus(y.div(mu));
-    const dz = new D(1).minus(z.div(mu));
-    if (D.max(dx.abs(), dy.abs(), dz.abs()).lt(1e-9)) {
-      const e2 = dx.times(dy).minus(dz.times(dz));
-      const e3 = dx.times(dy).times(dz);
-      // 1 - E2/10 + E3/14 + E2^2/24 - 3 E2 E3/44 (error O(eps^6) ~ 1e-54)
-      return new D(1).minus(e2.div(10)).plus(e3.div(14)).plus(e2.pow(2).div(24)).minus(e2.times(e3).times(3).div(44)).div(mu.sqrt());
-    }
-  }
-  throw new Error('R_F did not converge');
-}
-
-/** Largest root of r^3 - b^2 r + 2 b^2 = 0 (rg): the Schwarzschild turning point, by Newton from r = b. */
-function turningRef(b: Dec): Dec {
-  let r = b;
-  for (let i = 0; i < 300; i++) {
-    const f = r.pow(3).minus(b.pow(2).times(r)).plus(b.pow(2).times(2));
-    const fp = r.pow(2).times(3).minus(b.pow(2));
-    const next = r.minus(f.div(fp));
-    if (next.minus(r).abs().lte(r.times('1e-39'))) return next;
-    r = next;
-  }
-  return r;
-}
-
-/**
- * Darwin's closed form of the Schwarzschild deflection (Darwin 1959, Proc. R. Soc. A 249, 180; from
- * memory), M = 1: Delta phi = 4 sqrt(r0/Q) [K(k) - F(psi, k)] - pi with Q^2 = (r0 - 2)(r0 + 6),
- * k^2 = (Q - r0 + 6)/(2Q), sin^2 psi = (Q - r0 + 2)/(Q - r0 + 6); K, F through Carlson's R_F.
- */
-function darwinDeflection(b: Dec): Dec {
-  const r0 = turningRef(b);
-  const Q = r0.minus(2).times(r0.plus(6)).sqrt();
-  const k2 = Q.minus(r0).plus(6).div(Q.times(2));
-  const s2 = Q.minus(r0).plus(2).div(Q.minus(r0).plus(6));
-  const K = carlsonRF(new D(0), new D(1).minus(k2), new D(1));
-  const F = s2.sqrt().times(carlsonRF(new D(1).minus(s2), new D(1).minus(k2.times(s2)), new D(1)));
-  return r0.div(Q).sqrt().times(4).times(K.minus(F)).minus(PI);
-}
+const { turningRef, darwinDeflection } = darwinReference(D);
 
 /** (1 + gamma) GM/c^3 ln[(r_e + r_r + R)/(r_e + r_r - R)] (Shapiro 1964; Will 2014), 40 digits. */
 function shapiroRef(gm: Dec, re: Dec, rr: Dec, b: Dec, gamma: Dec, between = true): Dec {

@@ -7,6 +7,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { routeTestApp } from '../support/app.js';
+import { darwinReference } from '../support/darwin.js';
 import { reference } from '../support/reference.js';
 
 const { D, exact, relErr } = reference(40);
@@ -36,44 +37,7 @@ function shapiroRef(gm: Dec, re: Dec, rr: Dec, b: Dec, gamma: Dec = new D(1), be
   return new D(1).plus(gamma).times(gm).div(d(C).pow(3)).times(s.plus(R).div(s.minus(R)).ln());
 }
 
-/** Carlson's R_F by duplication (Carlson 1995, Numer. Algorithms 10, 13). */
-function carlsonRF(x: Dec, y: Dec, z: Dec): Dec {
-  for (let i = 0; i < 300; i++) {
-    const [sx, sy, sz] = [x.sqrt(), y.sqrt(), z.sqrt()];
-    const lam = sx.times(sy).plus(sx.times(sz)).plus(sy.times(sz));
-    [x, y, z] = [x.plus(lam).div(4), y.plus(lam).div(4), z.plus(lam).div(4)];
-    const mu = x.plus(y).plus(z).div(3);
-    const [dx, dy, dz] = [new D(1).minus(x.div(mu)), new D(1).minus(y.div(mu)), new D(1).minus(z.div(mu))];
-    if (D.max(dx.abs(), dy.abs(), dz.abs()).lt(1e-9)) {
-      const e2 = dx.times(dy).minus(dz.times(dz));
-      const e3 = dx.times(dy).times(dz);
-      return new D(1).minus(e2.div(10)).plus(e3.div(14)).plus(e2.pow(2).div(24)).minus(e2.times(e3).times(3).div(44)).div(mu.sqrt());
-    }
-  }
-  throw new Error('R_F did not converge');
-}
-
-/** Largest root of r^3 - b^2 r + 2 b^2 (rg), Newton from r = b. */
-function turningRef(b: Dec): Dec {
-  let r = b;
-  for (let i = 0; i < 300; i++) {
-    const next = r.minus(r.pow(3).minus(b.pow(2).times(r)).plus(b.pow(2).times(2)).div(r.pow(2).times(3).minus(b.pow(2))));
-    if (next.minus(r).abs().lte(r.times('1e-39'))) return next;
-    r = next;
-  }
-  return r;
-}
-
-/** Schwarzschild deflection for b in rg (Darwin 1959, Proc. R. Soc. A 249, 180; from memory), 40 digits. */
-function darwinDeflection(b: Dec): Dec {
-  const r0 = turningRef(b);
-  const Q = r0.minus(2).times(r0.plus(6)).sqrt();
-  const k2 = Q.minus(r0).plus(6).div(Q.times(2));
-  const s2 = Q.minus(r0).plus(2).div(Q.minus(r0).plus(6));
-  const K = carlsonRF(new D(0), new D(1).minus(k2), new D(1));
-  const F = s2.sqrt().times(carlsonRF(new D(1).minus(s2), new D(1).minus(k2.times(s2)), new D(1)));
-  return r0.div(Q).sqrt().times(4).times(K.minus(F)).minus(PI);
-}
+const { turningRef, darwinDeflection } = darwinReference(D);
 
 // Earth-Mars superior conjunction with the ray grazing the Sun: Earth at 1 AU, Mars at 1.524 AU
 // (mean distance; from memory), b = R_sun (IAU 2015 B3).
