@@ -7,6 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { routeTestApp } from '../support/app.js';
 import { reference } from '../support/reference.js';
+import { expectFieldErrors } from '../support/problems.js';
 
 const { D, exact, relErr } = reference(40);
 type Dec = InstanceType<typeof D>;
@@ -214,13 +215,7 @@ describe('POST /v1/orbits/precession', () => {
       [{ body: { preset: 'sun' }, semi_major_axis: 1e11, eccentricity: 0.1, ppn_gamma: 20 }, '/ppn_gamma', /.+/],
       [{ body: { preset: 'sun' }, eccentricity: 0.1 }, '/semi_major_axis', /.+/],
     ];
-    for (const [req, pointer, message] of cases) {
-      const { status, body, headers } = await precession(req);
-      expect(status, JSON.stringify(req)).toBe(400);
-      expect(headers['content-type']).toMatch(/application\/problem\+json/);
-      expect(body.errors[0].pointer, JSON.stringify(req)).toBe(pointer);
-      expect(body.errors[0].message, JSON.stringify(req)).toMatch(message);
-    }
+    await expectFieldErrors(precession, cases, { problemJson: true });
   });
 
   it('422 states the allowed domain', async () => {
@@ -444,12 +439,7 @@ describe('POST /v1/orbits/gyroscope', () => {
       [{ body: { preset: 'earth', angular_momentum: { value: 1, unit: 'kg' } }, r: 7e6, inclination: 1 }, '/body/angular_momentum/unit', /not an angular momentum unit/],
       [{ body: { preset: 'earth' }, r: 7e6 }, '/inclination', /.+/],
     ];
-    for (const [req, pointer, message] of cases) {
-      const { status, body } = await gyroscope(req);
-      expect(status, JSON.stringify(req)).toBe(400);
-      expect(body.errors[0].pointer, JSON.stringify(req)).toBe(pointer);
-      expect(body.errors[0].message, JSON.stringify(req)).toMatch(message);
-    }
+    await expectFieldErrors(gyroscope, cases);
   });
 
   it('422 states the allowed domain: an orbit inside the Sun (with a given J), and r inside the Schwarzschild photon orbit', async () => {
